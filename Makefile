@@ -1,0 +1,34 @@
+# One command each on a fresh clone: the virtual environment is built when missing.
+PYTHON ?= python3
+VENV   := .venv
+PY     := $(VENV)/bin/python
+PIP    := $(PY) -m pip --disable-pip-version-check -q
+
+.PHONY: demo test bench lint clean
+
+$(PY):
+	$(PYTHON) -m venv $(VENV)
+
+$(VENV)/.base: pyproject.toml | $(PY)
+	$(PIP) install -e .
+	touch $@
+
+$(VENV)/.test: pyproject.toml | $(PY)
+	$(PIP) install -e ".[test]"
+	touch $@ $(VENV)/.base
+
+demo: $(VENV)/.base
+	$(PY) -m ionact demo
+
+test: $(VENV)/.test
+	$(PY) -m ruff check ionact tests benchmarks
+	$(PY) -m pytest -q
+
+bench: $(VENV)/.test
+	$(PY) benchmarks/run.py
+
+lint: $(VENV)/.test
+	$(PY) -m ruff check ionact tests benchmarks
+
+clean:
+	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json

@@ -1,0 +1,163 @@
+"""The ``ionact`` command: one subcommand per job, ``--json`` everywhere.
+
+User mistakes print one line naming the problem and exit with status 2; a traceback is
+shown only with ``--debug``.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import warnings
+
+import numpy as np
+
+from .errors import IonactError
+
+EXIT_USER = 2
+
+
+def _jsonable(x):
+    if isinstance(x, dict):
+        return {str(k): _jsonable(v) for k, v in x.items()}
+    if isinstance(x, list | tuple):
+        return [_jsonable(v) for v in x]
+    if isinstance(x, np.ndarray):
+        return x.tolist()
+    if isinstance(x, np.generic):
+        return x.item()
+    return x
+
+
+def _emit(args, data: dict, text: str) -> None:
+    if getattr(args, "json", False):
+        print(json.dumps(_jsonable(data), indent=2, ensure_ascii=False))
+    else:
+        print(text)
+
+
+def _solution(args):
+    from ._composition import solution_from_terms
+
+    return solution_from_terms(args.terms, args.temperature, balance=args.balance)
+
+
+def cmd_strength(args) -> int:
+    from .solution import ionic_strength_from_conductivity, ionic_strength_from_tds
+
+    if args.conductivity is not None or args.tds is not None:
+        if args.terms:
+            raise IonactError("give either a composition or --conductivity/--tds, not both")
+        est = (ionic_strength_from_conductivity(args.conductivity, args.rule or "russell")
+               if args.conductivity is not None else ionic_strength_from_tds(args.tds, args.rule or "langelier"))
+        data = {"ionic_strength": est.value, "rule": est.rule, "coefficient": est.coefficient, "source": est.source}
+        _emit(args, data, f"I ≈ {est.value:.4g} mol/L  (rule of thumb '{est.rule}', ×{est.coefficient:g}; "
+                          f"{est.source})")
+        return 0
+    if not args.terms:
+        raise IonactError("give a composition, e.g. 'ionact strength NaCl=0.1 \"CaCl2=2 mmol/kg\"'")
+    sol = _solution(args)
+    data = {"ionic_strength_molal": sol.ionic_strength, "temperature": sol.temperature,
+            "charge_balance": sol.charge_balance, "molalities": sol.molalities}
+    lines = [f"ionic strength  {sol.ionic_strength:.6g} mol/kg"]
+    try:
+        data["ionic_strength_molar"] = sol.molar_ionic_strength
+        data["density"] = sol.density
+        lines.append(f"                {sol.molar_ionic_strength:.6g} mol/L (density {sol.density:.5f} kg/L)")
+    except IonactError as exc:
+        lines.append(f"                (molar basis unavailable: {exc})")
+    lines.append(f"charge balance  {sol.charge_balance * 1e3:+.3g} meq/kg")
+    if sol.balanced_with:
+        ion, add = sol.balanced_with
+        data["balanced_with"] = {"ion": ion, "added_mol_per_kg": add}
+        lines.append(f"balanced with   {ion}: {add * 1e3:+.4g} mmol/kg added")
+    lines += [f"  {k:<10} {v:.6g} mol/kg" for k, v in sol.molalities.items()]
+    _emit(args, data, "\n".join(lines))
+    return 0
+
+
+def cmd_gamma(args) -> int:
+    from .activity import activity_coefficients, compare_models
+
+    if not args.terms:
+        raise IonactError("give a composition, e.g. 'ionact gamma NaCl=0.1 --model davies'")
+    sol = _solution(args)
+    if args.compare:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            c = compare_models(sol)
+        data = {"ionic_strength": sol.ionic_strength, "models": c.gammas, "in_range": c.in_range,
+                "skipped": c.skipped, "spread": c.spread, "spread_mv": c.spread_mv}
+        _emit(args, data, f"I = {sol.ionic_strength:.5g} mol/kg, {sol.temperature:g} °C\n" + c.table())
+        return 0
+    g = activity_coefficients(sol, model=args.model, missing=args.missing)
+    lines = [f"I = {sol.ionic_strength:.5g} mol/kg, {sol.temperature:g} °C, model {g.model} ({g.title})"]
+    if args.model == "auto":
+        lines.append(f"  chosen because {g.reason}")
+    lines += [f"  {ion:<10} γ = {v:.5f}   log10 γ = {np.log10(v):+.5f}" for ion, v in g.items()]
+    lines.append(f"convention: {g.convention}")
+    lines += [f"note: {n}" for n in g.notes]
+    if not g.in_range:
+        lines.append(f"warning: outside the model's range 0–{g.max_ionic_strength:g} mol/kg")
+    _emit(args, g.to_dict(), "\n".join(lines))
+    return 0
+
+
+def cmd_demo(args) -> int:
+    from .demo import run
+
+    run()
+    return 0
+
+
+def _composition_args(p):
+    p.add_argument("terms", nargs="*", help="KEY=AMOUNT terms: NaCl=0.1, 'Ca+2=2 mmol/kg', 'NO3-=10 mg/L as N'")
+    p.add_argument("-t", "--temperature", type=float, default=25.0, help="°C (default 25)")
+    p.add_argument("--balance", help="ion that takes up any charge imbalance, e.g. Cl-")
+    p.add_argument("--json", action="store_true", help="print JSON")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from .models.registry import model_names
+
+    p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients and "
+                                "ionic strength adjuster design.")
+    p.add_argument("--debug", action="store_true", help="show tracebacks")
+    sub = p.add_subparsers(dest="command", required=True)
+
+    s = sub.add_parser("strength", help="ionic strength of a composition, or estimated from EC/TDS")
+    _composition_args(s)
+    s.add_argument("--conductivity", type=float, help="electrical conductivity, µS/cm at 25 °C")
+    s.add_argument("--tds", type=float, help="total dissolved solids, mg/L")
+    s.add_argument("--rule", help="rule of thumb: russell, griffin-jurinak (EC) or langelier (TDS)")
+    s.set_defaults(func=cmd_strength)
+
+    g = sub.add_parser("gamma", help="activity coefficients of a composition by a model")
+    _composition_args(g)
+    g.add_argument("-m", "--model", default="auto", choices=model_names(), help="activity model (default auto)")
+    g.add_argument("--missing", default="error", help="missing parameters: error, zero, or a fallback model")
+    g.add_argument("--compare", action="store_true", help="every model side by side with their spread")
+    g.set_defaults(func=cmd_gamma)
+
+    d = sub.add_parser("demo", help="run the built-in invented scenario")
+    d.set_defaults(func=cmd_demo)
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    argv = sys.argv[1:] if argv is None else argv
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    try:
+        return int(args.func(args) or 0)
+    except (IonactError, OSError) as exc:
+        if args.debug:
+            raise
+        msg = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+        print(f"ionact {args.command}: error: {msg}", file=sys.stderr)
+        return EXIT_USER
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

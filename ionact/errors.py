@@ -1,0 +1,105 @@
+"""Exception and warning types, and the strict mode that turns range warnings into errors.
+
+Every error raised by ``ionact`` for a caller's input derives from :class:`IonactError`,
+so ``except ionact.IonactError`` catches all of them; most also derive from the matching
+built-in (``ValueError``, ``KeyError``) so generic code keeps working.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import contextvars
+import warnings
+from collections.abc import Iterator
+
+__all__ = [
+    "IonactError",
+    "InputError",
+    "UnitError",
+    "UnknownSpeciesError",
+    "MissingParameterError",
+    "InfeasibleDesignError",
+    "ValidityRangeError",
+    "ValidityRangeWarning",
+    "UnitAssumptionWarning",
+    "strict",
+    "is_strict",
+    "warn_range",
+]
+
+
+class IonactError(Exception):
+    """Base class of every error ``ionact`` raises for a caller's input."""
+
+
+class InputError(ValueError, IonactError):
+    """A value is malformed, out of its allowed range, NaN, negative, or inconsistent."""
+
+
+class UnitError(InputError):
+    """A unit string is unknown or has the wrong dimension for the quantity asked."""
+
+
+class UnknownSpeciesError(KeyError, IonactError):
+    """An ion or salt is not known (not in the tables and not parseable)."""
+
+    def __str__(self) -> str:  # KeyError quotes its message; we want it plain
+        return str(self.args[0]) if self.args else ""
+
+
+class MissingParameterError(KeyError, IonactError):
+    """A model needs a parameter (a Pitzer pair, an SIT ε, an ion size) the tables lack."""
+
+    def __str__(self) -> str:
+        return str(self.args[0]) if self.args else ""
+
+
+class InfeasibleDesignError(IonactError, ValueError):
+    """No adjuster design within the constraints meets the error budget."""
+
+
+class ValidityRangeError(InputError):
+    """A model or correlation was used outside its validity range in strict mode."""
+
+
+class ValidityRangeWarning(UserWarning):
+    """A model or correlation is used outside its validity range; the message says which."""
+
+
+class UnitAssumptionWarning(UserWarning):
+    """A unit was read under an assumption (e.g. ppm taken as mg/L for dilute water)."""
+
+
+_STRICT: contextvars.ContextVar[bool] = contextvars.ContextVar("ionact_strict", default=False)
+
+
+def is_strict() -> bool:
+    """Return True inside a :func:`strict` block."""
+    return _STRICT.get()
+
+
+@contextlib.contextmanager
+def strict(enabled: bool = True) -> Iterator[None]:
+    """Turn :class:`ValidityRangeWarning` into :class:`ValidityRangeError` inside the block.
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> with ia.strict():
+    ...     ia.water.density(120.0)
+    Traceback (most recent call last):
+    ...
+    ionact.errors.ValidityRangeError: water density: temperature 120 °C is outside 0–100 °C
+    """
+    token = _STRICT.set(enabled)
+    try:
+        yield
+    finally:
+        _STRICT.reset(token)
+
+
+def warn_range(message: str, stacklevel: int = 3) -> None:
+    """Warn (or raise in strict mode) that something is used outside its validity range."""
+    if _STRICT.get():
+        raise ValidityRangeError(message)
+    warnings.warn(message, ValidityRangeWarning, stacklevel=stacklevel)

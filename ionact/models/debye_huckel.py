@@ -1,0 +1,273 @@
+"""The Debye–Hückel family, Davies, Truesdell–Jones, B-dot, Bates–Guggenheim, Setschenow.
+
+Each public function broadcasts over charge, ionic strength (mol/kg), ion-size and
+temperature (°C) arrays and returns γ (the input's shape; a float for scalars). The
+``_lg_*`` kernels return log10 γ on plain arrays with no checks, for the hot paths.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .. import water
+from ..errors import InputError, warn_range
+
+__all__ = [
+    "limiting",
+    "extended_debye_huckel",
+    "guntelberg",
+    "davies",
+    "truesdell_jones",
+    "b_dot",
+    "bates_guggenheim",
+    "setschenow",
+    "RANGES",
+    "DAVIES_COEFFICIENT",
+    "B_DOT",
+    "SETSCHENOW_DEFAULT",
+]
+
+# Usual upper ionic strengths, mol/kg (DOMAIN §4; common practice, not sharp limits).
+RANGES = {
+    "limiting": 0.005,
+    "extended": 0.1,
+    "guntelberg": 0.1,
+    "davies": 0.5,
+    "truesdell-jones": 2.0,
+    "b-dot": 1.0,
+    "bates-guggenheim": 0.1,
+}
+DAVIES_COEFFICIENT = 0.3
+B_DOT = 0.041  # kg/mol at 25 °C (Helgeson 1969, from memory)
+SETSCHENOW_DEFAULT = 0.1  # kg/mol, common practice when unknown
+BATES_GUGGENHEIM_BA = 1.5  # kg^½ mol^-½ (IUPAC 2002 pH recommendations)
+
+
+def _lg_limiting(z2, sqrt_i, a):
+    return -a * z2 * sqrt_i
+
+
+def _lg_extended(z2, sqrt_i, a, b, size):
+    return -a * z2 * sqrt_i / (1.0 + b * size * sqrt_i)
+
+
+def _lg_guntelberg(z2, sqrt_i, a):
+    return -a * z2 * sqrt_i / (1.0 + sqrt_i)
+
+
+def _lg_davies(z2, sqrt_i, i, a, c=DAVIES_COEFFICIENT):
+    return -a * z2 * (sqrt_i / (1.0 + sqrt_i) - c * i)
+
+
+def _lg_truesdell_jones(z2, sqrt_i, i, a, b, size, bj):
+    return -a * z2 * sqrt_i / (1.0 + b * size * sqrt_i) + bj * i
+
+
+def _lg_b_dot(z2, sqrt_i, i, a, b, size, bdot=B_DOT):
+    return -a * z2 * sqrt_i / (1.0 + b * size * sqrt_i) + bdot * i
+
+
+def _lg_bates_guggenheim(z2, sqrt_i, a):
+    return -a * z2 * sqrt_i / (1.0 + BATES_GUGGENHEIM_BA * sqrt_i)
+
+
+def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True):
+    z = np.asarray(charge, dtype=float)
+    i = np.asarray(ionic_strength, dtype=float)
+    if np.any(i < 0):
+        raise InputError(f"{model}: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative; allowed: ≥ 0")
+    t = np.asarray(temperature, dtype=float)
+    a = water._dh_a(water._temperature(t, model))
+    finite = i[np.isfinite(i)]
+    if warn and model in RANGES and finite.size and finite.max() > RANGES[model]:
+        warn_range(
+            f"model {model}: ionic strength {finite.max():.4g} mol/kg is above its range "
+            f"0–{RANGES[model]:g} mol/kg",
+            stacklevel=4,
+        )
+    return z, i, t, a
+
+
+def _gamma(lg):
+    g = np.power(10.0, lg)
+    return float(g) if np.ndim(g) == 0 else g
+
+
+def _size(size, model):
+    s = np.asarray(size, dtype=float)
+    if np.any(~(s > 0)):
+        raise InputError(f"{model}: ion size {size!r} Å must be positive")
+    return s
+
+
+def limiting(charge, ionic_strength, temperature=25.0):
+    """Debye–Hückel limiting law (1923): log10 γ = −A z² √I.
+
+    Parameters
+    ----------
+    charge : int or array_like
+        Signed charge numbers.
+    ionic_strength : float or array_like
+        mol/kg.
+    temperature : float or array_like
+        °C; A follows :func:`ionact.water.debye_huckel_a`.
+
+    Returns
+    -------
+    float or ndarray
+        γ, broadcast over the inputs.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 0.005 mol/kg.
+
+    Examples
+    --------
+    >>> round(limiting(1, 0.001), 4)
+    0.9635
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "limiting")
+    return _gamma(_lg_limiting(z * z, np.sqrt(i), a))
+
+
+def extended_debye_huckel(charge, ionic_strength, size, temperature=25.0):
+    """Extended Debye–Hückel: log10 γ = −A z² √I / (1 + B å √I).
+
+    Parameters
+    ----------
+    charge : int or array_like
+    ionic_strength : float or array_like
+        mol/kg.
+    size : float or array_like
+        Ion-size parameter å in Å (Kielland 1937 values are on :class:`ionact.Ion`).
+    temperature : float or array_like
+        °C.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 0.1 mol/kg.
+
+    Examples
+    --------
+    >>> round(extended_debye_huckel(2, 0.01, 6.0), 3)  # Ca+2; Kielland's table gives 0.675
+    0.675
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "extended")
+    b = water._dh_b(t)
+    return _gamma(_lg_extended(z * z, np.sqrt(i), a, b, _size(size, "extended")))
+
+
+def guntelberg(charge, ionic_strength, temperature=25.0):
+    """Güntelberg (1926): log10 γ = −A z² √I / (1 + √I).
+
+    Examples
+    --------
+    >>> round(guntelberg(1, 0.01), 4)
+    0.8986
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "guntelberg")
+    return _gamma(_lg_guntelberg(z * z, np.sqrt(i), a))
+
+
+def davies(charge, ionic_strength, temperature=25.0, coefficient=DAVIES_COEFFICIENT):
+    """Davies (1962): log10 γ = −A z² (√I/(1 + √I) − c I), c = 0.3 by default.
+
+    Parameters
+    ----------
+    charge : int or array_like
+    ionic_strength : float or array_like
+        mol/kg.
+    temperature : float or array_like
+        °C.
+    coefficient : float
+        The linear-term coefficient c (0.3; some authors use 0.2).
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 0.5 mol/kg.
+
+    Examples
+    --------
+    >>> round(davies(1, 0.1), 4)
+    0.7809
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "davies")
+    return _gamma(_lg_davies(z * z, np.sqrt(i), i, a, coefficient))
+
+
+def truesdell_jones(charge, ionic_strength, a_size, b_ion, temperature=25.0):
+    """Truesdell–Jones (1974): log10 γ = −A z² √I / (1 + B a √I) + b I.
+
+    Parameters
+    ----------
+    a_size : float or array_like
+        Truesdell–Jones a, Å.
+    b_ion : float or array_like
+        Truesdell–Jones b, kg/mol.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 2 mol/kg.
+
+    Examples
+    --------
+    >>> round(truesdell_jones(1, 0.5, 4.0, 0.075), 3)  # Na+
+    0.708
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "truesdell-jones")
+    b = water._dh_b(t)
+    return _gamma(_lg_truesdell_jones(z * z, np.sqrt(i), i, a, b, _size(a_size, "truesdell-jones"),
+                                      np.asarray(b_ion, dtype=float)))
+
+
+def b_dot(charge, ionic_strength, size, temperature=25.0, bdot=B_DOT):
+    """B-dot (Helgeson 1969): extended Debye–Hückel plus Ḃ I, Ḃ = 0.041 kg/mol at 25 °C.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 1 mol/kg, or away from 25 ± 5 °C (Ḃ is a 25 °C value here).
+
+    Examples
+    --------
+    >>> round(b_dot(1, 0.1, 4.5), 4)
+    0.7835
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "b-dot")
+    if np.any(np.abs(t - 25.0) > 5.0):
+        warn_range(f"model b-dot: Ḃ = {bdot} is a 25 °C value; temperature outside 20–30 °C", stacklevel=3)
+    b = water._dh_b(t)
+    return _gamma(_lg_b_dot(z * z, np.sqrt(i), i, a, b, _size(size, "b-dot"), bdot))
+
+
+def bates_guggenheim(ionic_strength, temperature=25.0, charge=-1):
+    """Bates–Guggenheim convention: log10 γ_Cl = −A √I / (1 + 1.5 √I), for I ≤ 0.1 mol/kg.
+
+    The convention that fixes single-ion activity in the definition of pH (IUPAC 2002,
+    Buck et al., Pure Appl. Chem. 74, 2169). For other charges the same form with z².
+
+    Examples
+    --------
+    >>> round(bates_guggenheim(0.1), 3)
+    0.777
+    """
+    z, i, t, a = _prepare(charge, ionic_strength, temperature, "bates-guggenheim")
+    return _gamma(_lg_bates_guggenheim(z * z, np.sqrt(i), a))
+
+
+def setschenow(ionic_strength, k=SETSCHENOW_DEFAULT):
+    """Setschenow form for neutral solutes: log10 γ = k I (k ≈ 0.1 kg/mol when unknown).
+
+    Examples
+    --------
+    >>> round(setschenow(1.0), 4)
+    1.2589
+    """
+    i = np.asarray(ionic_strength, dtype=float)
+    if np.any(i < 0):
+        raise InputError(f"setschenow: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative")
+    return _gamma(np.asarray(k, dtype=float) * i)

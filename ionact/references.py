@@ -1,0 +1,98 @@
+"""Full citations for the ``source`` keys used in ``ionact/data/*.csv``.
+
+A key ending in ``-mem`` marks a value recalled from memory rather than read off the
+publication; such values have been checked only for consistency (see the tests) and
+should be verified against the original before being relied upon.
+"""
+
+from __future__ import annotations
+
+REFERENCES: dict[str, str] = {
+    "kielland1937-mem": (
+        "J. Kielland, Individual activity coefficients of ions in aqueous solutions, "
+        "J. Am. Chem. Soc. 59 (1937) 1675-1678 (values from memory)"
+    ),
+    "truesdell-jones1974-mem": (
+        "A. H. Truesdell, B. F. Jones, WATEQ, a computer program for calculating chemical "
+        "equilibria of natural waters, J. Res. U.S. Geol. Surv. 2 (1974) 233-248 "
+        "(values from memory)"
+    ),
+    "millero1972-mem": (
+        "F. J. Millero, The partial molal volumes of electrolytes in aqueous solutions, in "
+        "R. A. Horne (ed.), Water and Aqueous Solutions, Wiley (1972) (values from memory)"
+    ),
+    "nea-sit-mem": (
+        "OECD Nuclear Energy Agency thermochemical database reviews, SIT interaction "
+        "coefficients at 25 °C (Guillaumont et al. 2003, appendix B; values from memory)"
+    ),
+    "pitzer-mayorga1973-mem": (
+        "K. S. Pitzer, G. Mayorga, Thermodynamics of electrolytes II, J. Phys. Chem. 77 "
+        "(1973) 2300-2308 (values from memory)"
+    ),
+    "pitzer-mayorga1974-mem": (
+        "K. S. Pitzer, G. Mayorga, Thermodynamics of electrolytes III, 2-2 electrolytes, "
+        "J. Solution Chem. 3 (1974) 539-546 (values from memory)"
+    ),
+    "hmw1984-mem": (
+        "C. E. Harvie, N. Møller, J. H. Weare, The prediction of mineral solubilities in "
+        "natural waters, Geochim. Cosmochim. Acta 48 (1984) 723-751 (values from memory)"
+    ),
+    "pitzer-kim1974-mem": (
+        "K. S. Pitzer, J. J. Kim, Thermodynamics of electrolytes IV, activity and osmotic "
+        "coefficients for mixed electrolytes, J. Am. Chem. Soc. 96 (1974) 5701-5707 "
+        "(values from memory)"
+    ),
+    "crc-mem": (
+        "CRC Handbook of Chemistry and Physics, aqueous solubility and dissociation "
+        "constant tables (values from memory)"
+    ),
+    "common-practice": "common practice in the trade; no single source",
+    "kell1975-mem": (
+        "G. S. Kell, Density, thermal expansivity and compressibility of liquid water "
+        "from 0 to 150 °C, J. Chem. Eng. Data 20 (1975) 97-105 (coefficients from memory)"
+    ),
+    "malmberg-maryott1956-mem": (
+        "C. G. Malmberg, A. A. Maryott, Dielectric constant of water from 0 to 100 °C, "
+        "J. Res. Natl. Bur. Stand. 56 (1956) 1-8 (coefficients from memory)"
+    ),
+    "russell1976-mem": (
+        "L. L. Russell, Chemical aspects of groundwater recharge with wastewaters, "
+        "PhD thesis, University of California, Berkeley (1976) (from memory)"
+    ),
+    "griffin-jurinak1973-mem": (
+        "R. A. Griffin, J. J. Jurinak, Estimation of activity coefficients from the "
+        "electrical conductivity of natural aquatic systems and soil extracts, "
+        "Soil Sci. 116 (1973) 26-30 (from memory)"
+    ),
+    "langelier1936-mem": (
+        "W. F. Langelier, The analytical control of anti-corrosion water treatment, "
+        "J. Am. Water Works Assoc. 28 (1936) 1500-1521 (from memory)"
+    ),
+    "codata2018": "CODATA 2018 recommended values of the fundamental physical constants",
+    "helgeson1969-mem": (
+        "H. C. Helgeson, Thermodynamics of hydrothermal systems at elevated temperatures "
+        "and pressures, Am. J. Sci. 267 (1969) 729-804 (B-dot from memory)"
+    ),
+    "buck2002": (
+        "R. P. Buck et al., Measurement of pH. Definition, standards, and procedures "
+        "(IUPAC Recommendations 2002), Pure Appl. Chem. 74 (2002) 2169-2200"
+    ),
+    "pitzer1975-mem": (
+        "K. S. Pitzer, Thermodynamics of electrolytes V, effects of higher-order "
+        "electrostatic terms, J. Solution Chem. 4 (1975) 249-265 (J(x) fit from memory)"
+    ),
+    "robinson-stokes1959-mem": (
+        "R. A. Robinson, R. H. Stokes, Electrolyte Solutions, 2nd ed., Butterworths "
+        "(1959), appendix 8.10 (values from memory)"
+    ),
+    "hamer-wu1972-mem": (
+        "W. J. Hamer, Y.-C. Wu, Osmotic coefficients and mean activity coefficients of "
+        "uni-univalent electrolytes in water at 25 °C, J. Phys. Chem. Ref. Data 1 (1972) "
+        "1047-1099 (values from memory)"
+    ),
+}
+
+
+def cite(key: str) -> str:
+    """Return the full citation for a source key (the key itself if unknown)."""
+    return REFERENCES.get(key, key)

@@ -1,0 +1,178 @@
+"""Load the parameter tables under ``ionact/data`` once, into frozen records.
+
+Every table row carries a ``source`` key (one or several, ``;``-separated) that
+resolves to a full citation in :mod:`ionact.references`.
+"""
+
+from __future__ import annotations
+
+import csv
+from dataclasses import dataclass
+from functools import lru_cache
+from importlib import resources
+
+__all__ = [
+    "IonRecord",
+    "SaltRecord",
+    "PitzerBinary",
+    "ion_table",
+    "salt_table",
+    "sit_table",
+    "pitzer_binary_table",
+    "pitzer_mixing_table",
+    "canonical_name",
+]
+
+
+def canonical_name(formula: str, charge: int) -> str:
+    """Canonical text of an ion: ``Ca+2``, ``Na+``, ``SO4-2``, ``Cl-``, neutral ``NH3``."""
+    if charge == 0:
+        return formula
+    sign = "+" if charge > 0 else "-"
+    return f"{formula}{sign}{abs(charge) if abs(charge) > 1 else ''}"
+
+
+def _rows(name: str) -> list[dict[str, str]]:
+    text = resources.files("ionact").joinpath("data", name).read_text(encoding="utf-8")
+    return list(csv.DictReader(text.splitlines()))
+
+
+def _opt(value: str) -> float | None:
+    value = value.strip()
+    return float(value) if value else None
+
+
+@dataclass(frozen=True, slots=True)
+class IonRecord:
+    """One row of ``ions.csv``: an ion's tabulated parameters (25 °C)."""
+
+    formula: str
+    charge: int
+    aliases: tuple[str, ...]
+    size: float | None  # Kielland ion-size parameter, Å
+    tj_a: float | None  # Truesdell–Jones a, Å
+    tj_b: float | None  # Truesdell–Jones b, kg/mol
+    volume: float | None  # apparent molar volume at infinite dilution, cm³/mol
+    source: tuple[str, ...]
+
+    @property
+    def name(self) -> str:
+        return canonical_name(self.formula, self.charge)
+
+
+@dataclass(frozen=True, slots=True)
+class SaltRecord:
+    """One row of ``salts.csv``: stoichiometry, solubility and hazard keys."""
+
+    formula: str
+    ions: tuple[tuple[str, int], ...]
+    solubility: tuple[tuple[float, float], ...]  # (°C, g anhydrous salt per 100 g water)
+    hazards: tuple[str, ...]
+    source: tuple[str, ...]
+
+
+@dataclass(frozen=True, slots=True)
+class PitzerBinary:
+    """Binary Pitzer parameters of one cation–anion pair at 25 °C."""
+
+    cation: str
+    anion: str
+    beta0: float
+    beta1: float
+    beta2: float
+    cphi: float
+    alpha1: float
+    alpha2: float
+    dbeta0_dT: float | None
+    dbeta1_dT: float | None
+    dcphi_dT: float | None
+    max_molality: float
+    source: tuple[str, ...]
+
+
+def _src(text: str) -> tuple[str, ...]:
+    return tuple(s.strip() for s in text.split(";") if s.strip())
+
+
+@lru_cache(maxsize=1)
+def ion_table() -> dict[str, IonRecord]:
+    """All tabulated ions keyed by canonical name (``"Ca+2"``)."""
+    out: dict[str, IonRecord] = {}
+    for r in _rows("ions.csv"):
+        rec = IonRecord(
+            formula=r["formula"],
+            charge=int(r["charge"]),
+            aliases=tuple(a for a in r["aliases"].split(";") if a),
+            size=_opt(r["kielland_size_angstrom"]),
+            tj_a=_opt(r["tj_a_angstrom"]),
+            tj_b=_opt(r["tj_b_kg_per_mol"]),
+            volume=_opt(r["volume_cm3_per_mol"]),
+            source=_src(r["source"]),
+        )
+        out[rec.name] = rec
+    return out
+
+
+@lru_cache(maxsize=1)
+def salt_table() -> dict[str, SaltRecord]:
+    """Tabulated salts keyed by formula as written in the table."""
+    out: dict[str, SaltRecord] = {}
+    temps = (0.0, 10.0, 20.0, 25.0, 30.0)
+    for r in _rows("salts.csv"):
+        sol = tuple(
+            (t, float(r[f"sol_{int(t)}C"])) for t in temps if r[f"sol_{int(t)}C"].strip()
+        )
+        out[r["formula"]] = SaltRecord(
+            formula=r["formula"],
+            ions=((r["cation"], int(r["nu_cation"])), (r["anion"], int(r["nu_anion"]))),
+            solubility=sol,
+            hazards=tuple(h for h in r["hazards"].split(";") if h),
+            source=_src(r["source"]),
+        )
+    return out
+
+
+@lru_cache(maxsize=1)
+def sit_table() -> dict[frozenset[str], tuple[float, tuple[str, ...]]]:
+    """SIT ε(j, k) in kg/mol at 25 °C keyed by the unordered ion pair."""
+    return {
+        frozenset((r["cation"], r["anion"])): (float(r["epsilon_kg_per_mol"]), _src(r["source"]))
+        for r in _rows("sit.csv")
+    }
+
+
+@lru_cache(maxsize=1)
+def pitzer_binary_table() -> dict[tuple[str, str], PitzerBinary]:
+    """Binary Pitzer parameters keyed by (cation, anion)."""
+    out: dict[tuple[str, str], PitzerBinary] = {}
+    for r in _rows("pitzer_binary.csv"):
+        rec = PitzerBinary(
+            cation=r["cation"],
+            anion=r["anion"],
+            beta0=float(r["beta0"]),
+            beta1=float(r["beta1"]),
+            beta2=float(r["beta2"]),
+            cphi=float(r["cphi"]),
+            alpha1=float(r["alpha1"]),
+            alpha2=float(r["alpha2"]),
+            dbeta0_dT=_opt(r["dbeta0_dT"]),
+            dbeta1_dT=_opt(r["dbeta1_dT"]),
+            dcphi_dT=_opt(r["dcphi_dT"]),
+            max_molality=float(r["max_molality"]),
+            source=_src(r["source"]),
+        )
+        out[(rec.cation, rec.anion)] = rec
+    return out
+
+
+@lru_cache(maxsize=1)
+def pitzer_mixing_table() -> tuple[dict[frozenset[str], float], dict[tuple[frozenset[str], str], float]]:
+    """θ keyed by the unordered like-sign pair; ψ keyed by (like-sign pair, third ion)."""
+    theta: dict[frozenset[str], float] = {}
+    psi: dict[tuple[frozenset[str], str], float] = {}
+    for r in _rows("pitzer_mixing.csv"):
+        if r["kind"] == "theta":
+            theta[frozenset((r["ion1"], r["ion2"]))] = float(r["value"])
+        else:
+            psi[(frozenset((r["ion1"], r["ion2"])), r["ion3"])] = float(r["value"])
+    return theta, psi

@@ -1,0 +1,57 @@
+"""The command line: subcommands, --json, one-line errors."""
+
+import json
+
+import pytest
+
+from ionact.cli import main
+
+
+def run(capsys, *argv):
+    rc = main(list(argv))
+    out, err = capsys.readouterr()
+    return rc, out, err
+
+
+@pytest.mark.parametrize("model", ["davies", "pitzer", "extended", "sit", "truesdell-jones", "auto"])
+def test_gamma_json_for_models(capsys, model):
+    rc, out, _ = run(capsys, "gamma", "NaCl=0.05", "--model", model, "--json")
+    assert rc == 0
+    data = json.loads(out)
+    assert 0.7 < data["gamma"]["Na+"] < 0.9
+    assert data["model"] == (model if model != "auto" else "pitzer")
+
+
+def test_gamma_text_and_compare(capsys):
+    rc, out, _ = run(capsys, "gamma", "CaCl2=2 mmol/kg", "NaCl=0.01", "--model", "davies")
+    assert rc == 0 and "Ca+2" in out and "γ =" in out
+    rc, out, _ = run(capsys, "gamma", "NaCl=0.05", "--compare")
+    assert rc == 0 and "spread mV" in out
+
+
+def test_strength(capsys):
+    rc, out, _ = run(capsys, "strength", "CaCl2=0.01", "--json")
+    assert rc == 0 and json.loads(out)["ionic_strength_molal"] == pytest.approx(0.03)
+    rc, out, _ = run(capsys, "strength", "--conductivity", "1000", "--json")
+    data = json.loads(out)
+    assert data["ionic_strength"] == pytest.approx(0.016) and data["rule"] == "russell"
+
+
+def test_user_errors_are_one_line(capsys):
+    rc, out, err = run(capsys, "gamma", "NaQq=0.1")
+    assert rc == 2 and out == "" and err.count("\n") == 1 and "NaQq" in err
+    rc, _, err = run(capsys, "strength", "Na+=0.1")
+    assert rc == 2 and "charge imbalance" in err
+
+
+def test_debug_shows_traceback():
+    from ionact.errors import UnknownSpeciesError
+
+    with pytest.raises(UnknownSpeciesError):
+        main(["--debug", "gamma", "NaQq=0.1"])
+
+
+def test_demo_prints_real_numbers(capsys):
+    rc, out, _ = run(capsys, "demo")
+    assert rc == 0
+    assert "HF-05 saline well" in out and "γ" in out
