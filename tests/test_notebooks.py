@@ -1,0 +1,22 @@
+"""Every notebook in notebooks/ runs top to bottom."""
+
+from pathlib import Path
+
+import nbformat
+import pytest
+from nbclient import NotebookClient
+
+NOTEBOOKS = sorted((Path(__file__).parent.parent / "notebooks").glob("*.ipynb"))
+
+
+@pytest.mark.parametrize("path", NOTEBOOKS, ids=[p.stem for p in NOTEBOOKS])
+def test_notebook_runs(path):
+    nb = nbformat.read(path, as_version=4)
+    client = NotebookClient(nb, timeout=300, kernel_name="python3", resources={"metadata": {"path": str(path.parent)}})
+    client.execute()
+    errors = [o for c in nb.cells if c.cell_type == "code" for o in c.get("outputs", []) if o.output_type == "error"]
+    assert not errors
+
+
+def test_there_are_notebooks():
+    assert NOTEBOOKS, "notebooks/ must hold the worked scenarios"
