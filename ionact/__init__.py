@@ -1,4 +1,6 @@
 """ionact: ionic strength, activity coefficients and ionic strength adjuster design."""
+
+__version__ = "0.1.0"
 from . import (
     models,  # noqa: F401
     water,  # noqa: F401
