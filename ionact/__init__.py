@@ -1,22 +1,77 @@
-"""ionact: ionic strength, activity coefficients and ionic strength adjuster design."""
+"""ionact: ionic strength, activity coefficients and ionic strength adjuster design.
+
+The public API is re-exported here; see the README for a tour. ``import ionact`` stays
+light: the pint unit registry and the parameter tables are created on first use.
+"""
 
 __version__ = "0.1.0"
-from . import (
-    models,  # noqa: F401
-    water,  # noqa: F401
-)
-from .activity import (  # noqa: F401
+
+from . import models, water
+from .activity import (
+    ActivityCoefficients,
     activity_coefficients,
     compare_models,
     mean_activity_coefficient,
     osmotic_coefficient,
     water_activity,
 )
-from .errors import *  # noqa: F401,F403
-from .solution import (  # noqa: F401
-    Solution,
-    ionic_strength_from_conductivity,
-    ionic_strength_from_tds,
+from .conversion import (
+    activity_from_concentration,
+    activity_from_px,
+    concentration_from_activity,
+    px_from_activity,
+    standard_for_activity,
 )
-from .species import Ion, Salt  # noqa: F401
-from .water import nernst_slope  # noqa: F401
+from .electrode import mv_to_relative_error, nikolsky_eisenman, relative_error_to_mv, temperature_error
+from .errors import (
+    InfeasibleDesignError,
+    InputError,
+    IonactError,
+    MissingParameterError,
+    UnitAssumptionWarning,
+    UnitError,
+    UnknownSpeciesError,
+    ValidityRangeError,
+    ValidityRangeWarning,
+    strict,
+)
+from .solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
+from .species import Ion, Salt
+from .water import nernst_slope
+
+__all__ = [
+    "__version__",
+    "models",
+    "water",
+    "Ion",
+    "Salt",
+    "Solution",
+    "ionic_strength_from_conductivity",
+    "ionic_strength_from_tds",
+    "ActivityCoefficients",
+    "activity_coefficients",
+    "mean_activity_coefficient",
+    "compare_models",
+    "osmotic_coefficient",
+    "water_activity",
+    "concentration_from_activity",
+    "activity_from_concentration",
+    "standard_for_activity",
+    "activity_from_px",
+    "px_from_activity",
+    "nernst_slope",
+    "mv_to_relative_error",
+    "relative_error_to_mv",
+    "nikolsky_eisenman",
+    "temperature_error",
+    "IonactError",
+    "InputError",
+    "UnitError",
+    "UnknownSpeciesError",
+    "MissingParameterError",
+    "InfeasibleDesignError",
+    "ValidityRangeError",
+    "ValidityRangeWarning",
+    "UnitAssumptionWarning",
+    "strict",
+]

@@ -104,6 +104,46 @@ def cmd_gamma(args) -> int:
     return 0
 
 
+def cmd_convert(args) -> int:
+    from .conversion import activity_from_concentration, activity_from_px, concentration_from_activity
+
+    matrix = None
+    if args.terms:
+        from ._composition import solution_from_terms
+
+        matrix = solution_from_terms(args.terms, args.temperature, balance=args.balance)
+    given = [x is not None for x in (args.activity, args.px, args.concentration)]
+    if sum(given) != 1:
+        raise IonactError("give exactly one of --activity, --px or --concentration")
+    kw = dict(matrix=matrix, counter_ion=args.counter_ion, model=args.model)
+    if matrix is None:
+        kw["temperature"] = args.temperature
+    if args.concentration is not None:
+        conc = args.concentration
+        try:
+            conc = float(conc)
+        except ValueError:
+            pass
+        r = activity_from_concentration(args.ion, conc, **kw)
+    else:
+        a = args.activity if args.activity is not None else activity_from_px(args.px)
+        r = concentration_from_activity(args.ion, a, **kw)
+    data = r.to_dict()
+    lines = [f"{r.ion} with counter-ion {r.counter_ion} in "
+             f"{'pure water' if matrix is None else 'the given matrix'}, model {r.model}"]
+    px = -np.log10(r.activity)
+    lines.append(f"  activity        {r.activity:.6g}   (p{r.ion.rstrip('+-0123456789')} = {px:.4f})")
+    lines.append(f"  γ               {r.gamma:.6f}")
+    lines.append(f"  molality        {r.molality:.6g} mol/kg")
+    for unit in args.unit or []:
+        v = r.concentration(unit)
+        data.setdefault("concentration", {})[unit] = v
+        lines.append(f"  concentration   {v:.6g} {unit}")
+    lines.append(f"  ionic strength  {r.ionic_strength:.6g} mol/kg")
+    _emit(args, data, "\n".join(lines))
+    return 0
+
+
 def cmd_demo(args) -> int:
     from .demo import run
 
@@ -111,8 +151,13 @@ def cmd_demo(args) -> int:
     return 0
 
 
-def _composition_args(p):
-    p.add_argument("terms", nargs="*", help="KEY=AMOUNT terms: NaCl=0.1, 'Ca+2=2 mmol/kg', 'NO3-=10 mg/L as N'")
+def _composition_args(p, as_option=False):
+    helptext = "KEY=AMOUNT terms: NaCl=0.1, 'Ca+2=2 mmol/kg', 'NO3-=10 mg/L as N'"
+    if as_option:
+        p.add_argument("--matrix", dest="terms", nargs="+", default=[], metavar="KEY=AMOUNT",
+                       help="the background without the analyte; " + helptext)
+    else:
+        p.add_argument("terms", nargs="*", help=helptext)
     p.add_argument("-t", "--temperature", type=float, default=25.0, help="°C (default 25)")
     p.add_argument("--balance", help="ion that takes up any charge imbalance, e.g. Cl-")
     p.add_argument("--json", action="store_true", help="print JSON")
@@ -139,6 +184,17 @@ def build_parser() -> argparse.ArgumentParser:
     g.add_argument("--missing", default="error", help="missing parameters: error, zero, or a fallback model")
     g.add_argument("--compare", action="store_true", help="every model side by side with their spread")
     g.set_defaults(func=cmd_gamma)
+
+    c = sub.add_parser("convert", help="activity <-> concentration of an analyte in a matrix")
+    c.add_argument("ion", help="the analyte, e.g. F- or Ca+2")
+    _composition_args(c, as_option=True)
+    c.add_argument("--activity", type=float, help="molal-scale activity to convert to a concentration")
+    c.add_argument("--px", type=float, help="pX = -log10 a to convert to a concentration")
+    c.add_argument("--concentration", help="concentration to convert to an activity, e.g. '19 mg/L'")
+    c.add_argument("--counter-ion", help="ion accompanying the analyte (default Cl- or Na+)")
+    c.add_argument("-m", "--model", default="auto", choices=model_names(), help="activity model (default auto)")
+    c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
+    c.set_defaults(func=cmd_convert)
 
     d = sub.add_parser("demo", help="run the built-in invented scenario")
     d.set_defaults(func=cmd_demo)

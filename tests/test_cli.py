@@ -55,3 +55,16 @@ def test_demo_prints_real_numbers(capsys):
     rc, out, _ = run(capsys, "demo")
     assert rc == 0
     assert "HF-05 saline well" in out and "γ" in out
+
+
+def test_convert(capsys):
+    rc, out, _ = run(capsys, "convert", "F-", "--px", "4", "--matrix", "NaCl=0.1", "--unit", "mg/L", "--json")
+    data = json.loads(out)
+    assert rc == 0 and data["activity"] == pytest.approx(1e-4) and data["counter_ion"] == "Na+"
+    assert data["concentration"]["mg/L"] > 1.9
+    rc, out, _ = run(capsys, "convert", "NO3-", "--concentration", "10 mg/L as N", "--model", "davies")
+    assert rc == 0 and "γ" in out
+    rc, _, err = run(capsys, "convert", "Na+", "--activity", "0.01", "--counter-ion", "K+")
+    assert rc == 2 and "opposite charge" in err
+    rc, _, err = run(capsys, "convert", "Na+")
+    assert rc == 2 and "exactly one" in err

@@ -1,0 +1,438 @@
+"""Activity ↔ concentration, solved self-consistently with the matrix.
+
+An electrode calibrated in activity (or a pX reading) gives a; the concentration that
+produces it depends on γ, which depends on the ionic strength the analyte itself adds.
+The analyte is taken to be present with an electroneutral counter-ion (default Cl- for a
+cation, Na+ for an anion) in a background ``matrix`` (a :class:`~ionact.Solution`, or
+pure water). The molality m solves
+
+    ln m + ln γ(m) = ln a
+
+by a vectorised, safeguarded Newton iteration on ln m (no Python loop over samples),
+converged to a relative 1e-12 in m; the smallest root is taken, and where no molality
+under the model's formula reaches the activity an error says so and gives the largest
+reachable activity.
+"""
+
+from __future__ import annotations
+
+import math
+import warnings
+from dataclasses import dataclass
+
+import numpy as np
+
+from .activity import _options, select_model
+from .errors import InputError, ValidityRangeWarning, warn_range
+from .models.registry import MODELS, Batch, Options, get_model, log10_gamma
+from .solution import Solution
+from .species import Ion, Salt, resolve_ion
+from .units import MOLAL, Amount, convert_amount, parse_amount
+
+__all__ = [
+    "ActivityConversion",
+    "concentration_from_activity",
+    "activity_from_concentration",
+    "standard_for_activity",
+    "activity_from_px",
+    "px_from_activity",
+]
+
+LN10 = math.log(10.0)
+MAX_IONIC_STRENGTH = 10.0  # mol/kg: the search for a root stops here
+_TOL = 1e-12
+
+
+def _counter(ion: Ion, counter_ion) -> Ion:
+    if ion.charge == 0:
+        if counter_ion is not None:
+            raise InputError(f"{ion.name} is neutral and takes no counter-ion (got {counter_ion!r})")
+        return None
+    if counter_ion is None:
+        counter_ion = "Cl-" if ion.charge > 0 else "Na+"
+    c = resolve_ion(counter_ion)
+    if c.charge * ion.charge >= 0:
+        raise InputError(
+            f"counter-ion {c.name} has charge {c.charge:+d}, the same sign as (or neutral with) {ion.name}; "
+            f"it must carry the opposite charge"
+        )
+    return c
+
+
+@dataclass(frozen=True)
+class _Problem:
+    names: tuple[str, ...]
+    ions: tuple[Ion, ...]
+    z: np.ndarray
+    base: np.ndarray  # (n, N) background molalities
+    stoich: np.ndarray  # (n,) molality added per unit analyte molality
+    k: int  # analyte index
+    t: np.ndarray  # (N,)
+    shape: tuple[int, ...]
+
+
+def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, temperature) -> _Problem:
+    if matrix is not None:
+        if not isinstance(matrix, Solution):
+            raise InputError(f"matrix must be a Solution or None, got {type(matrix).__name__}")
+        if ion.name in matrix.ions and np.any(np.asarray(matrix.molality(ion.name)) > 0):
+            raise InputError(
+                f"the matrix already contains the analyte {ion.name}; give the background without it"
+            )
+        names = list(matrix.ions)
+        ions = [matrix.ion(n) for n in names]
+        shape = np.broadcast_shapes(matrix.shape, shape_in)
+        base_m = np.broadcast_to(matrix.molality_array, (len(names), *shape))
+        t = np.broadcast_to(matrix._t, shape)
+    else:
+        names, ions, shape = [], [], tuple(shape_in)
+        base_m = np.zeros((0, *shape))
+        t_arr = np.asarray(25.0 if temperature is None else temperature, dtype=float)
+        shape = np.broadcast_shapes(shape, t_arr.shape)
+        base_m = np.zeros((0, *shape))
+        t = np.broadcast_to(t_arr, shape)
+    for extra in (ion, counter):
+        if extra is not None and extra.name not in names:
+            names.append(extra.name)
+            ions.append(extra)
+    n = len(names)
+    size = int(np.prod(shape))
+    base = np.zeros((n, size))
+    if base_m.shape[0]:
+        base[: base_m.shape[0]] = np.asarray(base_m).reshape(base_m.shape[0], size)
+    stoich = np.zeros(n)
+    k = names.index(ion.name)
+    stoich[k] = 1.0
+    if counter is not None:
+        stoich[names.index(counter.name)] += abs(ion.charge) / abs(counter.charge)
+    z = np.array([i.charge for i in ions], dtype=float)
+    return _Problem(tuple(names), tuple(ions), z, base, stoich, k, np.asarray(t, dtype=float).reshape(size), shape)
+
+
+def _ln_gamma(p: _Problem, info, opts: Options, m_analyte: np.ndarray, rows=None) -> np.ndarray:
+    base = p.base if rows is None else p.base[:, rows]
+    t = p.t if rows is None else p.t[rows]
+    m = base + p.stoich[:, None] * m_analyte[None, :]
+    ionic = 0.5 * (p.z**2) @ m
+    lg, _ = log10_gamma(info, Batch(p.names, p.ions, p.z, m, t, ionic), opts)
+    return lg[p.k] * LN10
+
+
+def _choose(p: _Problem, model: str, opts: Options, m_guess: np.ndarray):
+    if model != "auto":
+        return get_model(model), "requested"
+    m = p.base + p.stoich[:, None] * m_guess[None, :]
+    imax = float(np.max(0.5 * (p.z**2) @ m)) if m.size else 0.0
+    name, reason = select_model(p.ions, imax, opts)
+    return MODELS[name], reason
+
+
+def _solve(p: _Problem, info, opts: Options, ln_a: np.ndarray):
+    """Smallest root of x + ln γ(e^x) − ln a = 0 for every sample; returns x and a status mask."""
+    # cap: the analyte alone (with its counter-ion) would reach MAX_IONIC_STRENGTH
+    i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
+    x_cap = math.log(MAX_IONIC_STRENGTH / i_per_m)
+    x = ln_a.copy()
+    lo = np.full_like(x, -np.inf)
+    hi = np.full_like(x, np.inf)
+    done = np.zeros(x.shape, dtype=bool)
+    h = 1e-6
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityRangeWarning)
+        for _ in range(100):
+            act = ~done
+            if not np.any(act):
+                break
+            xa = x[act]
+            f = xa + _ln_gamma(p, info, opts, np.exp(xa), np.flatnonzero(act)) - ln_a[act]
+            f2 = (xa + h) + _ln_gamma(p, info, opts, np.exp(xa + h), np.flatnonzero(act)) - ln_a[act]
+            d = (f2 - f) / h
+            lo_a, hi_a = lo[act], hi[act]
+            lo_a = np.where(f < 0, np.maximum(lo_a, xa), lo_a)
+            hi_a = np.where(f > 0, np.minimum(hi_a, xa), hi_a)
+            step = np.where(d > 0.05, -f / np.where(d > 0.05, d, 1.0), -np.sign(f) * LN10)
+            step = np.clip(step, -2 * LN10, 2 * LN10)
+            xn = xa + step
+            bracketed = np.isfinite(lo_a) & np.isfinite(hi_a)
+            outside = bracketed & ((xn <= lo_a) | (xn >= hi_a))
+            xn = np.where(outside, 0.5 * (lo_a + hi_a), xn)
+            xn = np.minimum(xn, x_cap)
+            conv = (np.abs(xn - xa) < _TOL) | (np.abs(f) < 1e-14)
+            stuck = (xa >= x_cap) & (f < 0)
+            x[act] = np.where(conv, xa, xn)
+            lo[act], hi[act] = lo_a, hi_a
+            idx = np.flatnonzero(act)
+            done[idx[conv | stuck]] = True
+        final = x + _ln_gamma(p, info, opts, np.exp(x)) - ln_a
+    ok = np.abs(final) < 1e-9
+    return x, ok
+
+
+def _max_reachable(p: _Problem, info, opts, rows) -> float:
+    i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
+    grid = np.geomspace(1e-12, MAX_IONIC_STRENGTH / i_per_m, 400)
+    best = 0.0
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityRangeWarning)
+        for r in rows[:1]:
+            rr = np.full(grid.size, r)
+            lng = _ln_gamma(p, info, opts, grid, rr)
+            best = float(np.max(grid * np.exp(lng)))
+    return best
+
+
+@dataclass(frozen=True)
+class ActivityConversion:
+    """The analyte's molality, activity and γ in its matrix, and how they were obtained.
+
+    Attributes
+    ----------
+    ion, counter_ion : str
+        The analyte and the counter-ion assumed to accompany it (None for a neutral).
+    molality : float or ndarray
+        Analyte molality, mol/kg.
+    activity : float or ndarray
+        Molal-scale activity a = γ m.
+    gamma : float or ndarray
+    ionic_strength : float or ndarray
+        Of the final solution (matrix + analyte + counter-ion), mol/kg.
+    model, reason : str
+    solution : Solution
+        The final solution, for further conversions (molar units need its density model).
+    """
+
+    ion: str
+    counter_ion: str | None
+    molality: float | np.ndarray
+    activity: float | np.ndarray
+    gamma: float | np.ndarray
+    ionic_strength: float | np.ndarray
+    model: str
+    reason: str
+    solution: Solution
+
+    def concentration(self, unit: str = "mol/kg"):
+        """The analyte concentration in ``unit`` (mol/kg, mmol/kg, mol/L, mmol/L, mg/L, µg/L,
+        meq/L, "mg/L as N", …); molar units use the final solution's density model."""
+        w = None if unit in ("mol/kg", "mmol/kg") else self.solution.water_per_litre
+        return convert_amount(self.molality, MOLAL, unit, self.ion, water_per_litre=w)
+
+    def to_dict(self) -> dict:
+        def conv(v):
+            return float(v) if np.ndim(v) == 0 else np.asarray(v).tolist()
+
+        return {"ion": self.ion, "counter_ion": self.counter_ion, "molality": conv(self.molality),
+                "activity": conv(self.activity), "gamma": conv(self.gamma),
+                "ionic_strength": conv(self.ionic_strength), "model": self.model, "reason": self.reason}
+
+
+def _out(x, shape):
+    x = np.asarray(x).reshape(shape)
+    return float(x) if x.ndim == 0 else x
+
+
+def _final(ion, counter, p, m_an, info, reason, opts, density=None) -> ActivityConversion:
+    m = p.base + p.stoich[:, None] * m_an[None, :]
+    ionic = 0.5 * (p.z**2) @ m
+    imax = float(np.max(ionic[np.isfinite(ionic)])) if ionic.size else 0.0
+    if imax > info.max_ionic_strength:
+        warn_range(f"model {info.name}: ionic strength {imax:.4g} mol/kg is above its range "
+                   f"0–{info.max_ionic_strength:g} mol/kg", stacklevel=4)
+    lg, _ = log10_gamma(info, Batch(p.names, p.ions, p.z, m, p.t, ionic), opts)
+    gamma = np.power(10.0, lg[p.k])
+    sol = Solution._from_arrays(p.names, {i.name: i for i in p.ions},
+                                m.reshape(len(p.names), *p.shape), p.t.reshape(p.shape), density)
+    return ActivityConversion(ion.name, counter.name if counter else None, _out(m_an, p.shape),
+                              _out(gamma * m_an, p.shape), _out(gamma, p.shape), _out(ionic, p.shape),
+                              info.name, reason, sol)
+
+
+def concentration_from_activity(ion, activity, matrix: Solution | None = None, counter_ion=None,
+                                model: str = "auto", temperature=None, **model_options) -> ActivityConversion:
+    """The analyte concentration that gives a measured activity in a matrix.
+
+    Parameters
+    ----------
+    ion : str or Ion
+        The analyte, e.g. "F-", "NO3-", "Ca+2".
+    activity : float or array_like
+        Molal-scale activity (> 0); arrays give a batch (broadcast against a batch matrix).
+    matrix : Solution, optional
+        The background without the analyte; pure water when omitted.
+    counter_ion : str, optional
+        The ion that accompanies the analyte (default Cl- for a cation, Na+ for an anion);
+        recorded in the result.
+    model : str
+        Activity model name, or "auto" (chosen for the converged ionic strength).
+    temperature : float, optional
+        °C; the matrix's own temperature when a matrix is given, else 25 °C.
+    **model_options
+        Passed to the model (sizes, davies_coefficient, missing="zero", …).
+
+    Returns
+    -------
+    ActivityConversion
+        ``.molality`` (mol/kg), ``.concentration(unit)`` for other units, γ, I, model.
+
+    Raises
+    ------
+    InputError
+        Activity ≤ 0 or not finite, a counter-ion of the wrong sign, an analyte already in
+        the matrix, or an activity no concentration reaches under the model (the message
+        gives the largest reachable activity).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> r = ia.concentration_from_activity("Na+", 0.00810386, matrix=ia.Solution.from_salts({"KCl": 0.05}),
+    ...                                    model="davies")
+    >>> round(r.molality, 5), r.counter_ion
+    (0.01, 'Cl-')
+    """
+    an = resolve_ion(ion)
+    counter = _counter(an, counter_ion)
+    a = np.asarray(activity, dtype=float) if not isinstance(activity, str) else None
+    if a is None:
+        raise InputError(f"activity {activity!r} must be a number (molal-scale activity), not text")
+    if not np.all(np.isfinite(a)) or np.any(a <= 0):
+        bad = a[~(np.isfinite(a) & (a > 0))].flat[0]
+        raise InputError(f"activity {float(bad):g} of {an.name} is not positive and finite; allowed: > 0")
+    if matrix is not None and temperature is not None and np.any(np.asarray(temperature) != matrix._t):
+        raise InputError(f"temperature {temperature!r} differs from the matrix's {matrix.temperature!r}; "
+                         "set the temperature on the matrix")
+    opts = _options(**model_options)
+    p = _problem(an, counter, matrix, a.shape, temperature)
+    ln_a = np.log(np.broadcast_to(a, p.shape).reshape(-1))
+    info, reason = _choose(p, model, opts, np.exp(ln_a))
+    x, ok = _solve(p, info, opts, ln_a)
+    if model == "auto":  # re-select on the converged ionic strength
+        info2, reason2 = _choose(p, "auto", opts, np.exp(x))
+        if info2.name != info.name:
+            info, reason = info2, reason2
+            x, ok = _solve(p, info, opts, ln_a)
+    if not np.all(ok):
+        rows = np.flatnonzero(~ok)
+        best = _max_reachable(p, info, opts, rows)
+        where = f" (row {int(rows[0])})" if p.shape else ""
+        raise InputError(
+            f"no concentration of {an.name} gives activity {float(np.exp(ln_a[rows[0]])):.6g}{where} under model "
+            f"{info.name}: the largest reachable activity is {best:.4g} (up to I = {MAX_IONIC_STRENGTH:g} mol/kg)"
+        )
+    return _final(an, counter, p, np.exp(x), info, reason, opts)
+
+
+def activity_from_concentration(ion, amount, matrix: Solution | None = None, counter_ion=None,
+                                model: str = "auto", temperature=None, density=None,
+                                **model_options) -> ActivityConversion:
+    """The activity an electrode will see for a given analyte concentration in a matrix.
+
+    Parameters
+    ----------
+    amount : float, array_like, str or Quantity
+        Bare numbers are mol/kg; strings such as "0.5 mmol/L", "19 mg/L", "10 mg/L as N".
+        Molar amounts are converted with the density model of the final solution (or
+        ``density=``: kg/L, or "water").
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> r = ia.activity_from_concentration("Na+", 0.01, matrix=ia.Solution.from_salts({"KCl": 0.05}),
+    ...                                    model="davies")
+    >>> round(r.activity, 6), round(r.gamma, 5)
+    (0.008104, 0.81039)
+    """
+    an = resolve_ion(ion)
+    counter = _counter(an, counter_ion)
+    amt = amount if isinstance(amount, Amount) else parse_amount(amount, an)
+    value = np.asarray(amt.value, dtype=float)
+    if amt.basis != MOLAL:
+        parts = {}
+        if matrix is not None:
+            if not isinstance(matrix, Solution):
+                raise InputError(f"matrix must be a Solution or None, got {type(matrix).__name__}")
+            # the matrix keeps its molalities; the analyte salt is added on the molar basis
+            for name, mm in matrix.molalities.items():
+                parts[matrix.ion(name)] = Amount(np.asarray(mm), MOLAL)
+        plist = list(parts.items()) + [(an, Amount(value, "molar"))]
+        if counter is not None:
+            plist.append((counter, Amount(value * abs(an.charge) / abs(counter.charge), "molar")))
+        t = matrix._t if matrix is not None else (25.0 if temperature is None else temperature)
+        sol = Solution.__new__(Solution)
+        sol._build(plist, t, None, 0.999, density, check_duplicates=False)
+        value = np.asarray(sol.molality(an.name))
+    opts = _options(**model_options)
+    p = _problem(an, counter, matrix, value.shape, temperature)
+    m_an = np.broadcast_to(value, p.shape).reshape(-1).astype(float)
+    info, reason = _choose(p, model, opts, m_an)
+    return _final(an, counter, p, m_an, info, reason, opts, density=None)
+
+
+def activity_from_px(px):
+    """Activity from pX = −log10 a.
+
+    Examples
+    --------
+    >>> activity_from_px(3.0)
+    0.001
+    """
+    v = np.asarray(px, dtype=float)
+    if not np.all(np.isfinite(v)):
+        raise InputError(f"pX {px!r} must be finite")
+    out = np.power(10.0, -v)
+    return float(out) if out.ndim == 0 else out
+
+
+def px_from_activity(activity):
+    """pX = −log10 a for a > 0.
+
+    Examples
+    --------
+    >>> px_from_activity(1e-4)
+    4.0
+    """
+    a = np.asarray(activity, dtype=float)
+    if not np.all(np.isfinite(a)) or np.any(a <= 0):
+        raise InputError(f"activity {activity!r} must be positive and finite for pX")
+    out = -np.log10(a)
+    return float(out) if out.ndim == 0 else out
+
+
+@dataclass(frozen=True)
+class StandardRecipe:
+    """How much salt makes a standard of a given analyte activity."""
+
+    salt: str
+    ion: str
+    activity: float | np.ndarray
+    salt_molality: float | np.ndarray  # mol salt per kg water
+    grams_per_kg_water: float | np.ndarray
+    grams_per_litre: float | np.ndarray  # of solution, via the density model
+    gamma: float | np.ndarray
+    model: str
+
+
+def standard_for_activity(salt: str, ion: str, activity, matrix: Solution | None = None, model: str = "auto",
+                          temperature=None, **model_options) -> StandardRecipe:
+    """The salt amount that gives a standard of the wanted activity of one of its ions.
+
+    Examples
+    --------
+    >>> r = standard_for_activity("NaF", "F-", 1e-3, model="davies")
+    >>> round(r.salt_molality * 1e3, 4), round(r.grams_per_kg_water, 4)
+    (1.037, 0.0435)
+    """
+    s = Salt.parse(salt)
+    an = resolve_ion(ion)
+    names = [n for n, _ in s.ions]
+    if an.name not in names or len(names) != 2:
+        raise InputError(f"{an.name} is not one of the two ions of {s.text} ({', '.join(names)})")
+    counter = next(n for n in names if n != an.name)
+    nu = dict(s.ions)[an.name]
+    r = concentration_from_activity(an, activity, matrix=matrix, counter_ion=counter, model=model,
+                                    temperature=temperature, **model_options)
+    ms = np.asarray(r.molality) / nu
+    gl = ms * np.asarray(r.solution.water_per_litre) * s.molar_mass
+    def f(v):
+        return float(v) if np.ndim(v) == 0 else v
+
+    return StandardRecipe(s.text, an.name, r.activity, f(ms), f(ms * s.molar_mass), f(gl), r.gamma, r.model)
