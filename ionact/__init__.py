@@ -15,6 +15,7 @@ from .activity import (
     osmotic_coefficient,
     water_activity,
 )
+from .adjuster import AdjusterDesign, Buffer, compare_adjusters, design_adjuster
 from .conversion import (
     activity_from_concentration,
     activity_from_px,
@@ -64,6 +65,10 @@ __all__ = [
     "relative_error_to_mv",
     "nikolsky_eisenman",
     "temperature_error",
+    "design_adjuster",
+    "compare_adjusters",
+    "AdjusterDesign",
+    "Buffer",
     "IonactError",
     "InputError",
     "UnitError",

@@ -144,6 +144,34 @@ def cmd_convert(args) -> int:
     return 0
 
 
+def cmd_design(args) -> int:
+    from .adjuster import design_adjuster
+    from .method import example_names, load_method
+
+    if args.list_examples:
+        for n in example_names():
+            print(n)
+        return 0
+    if (args.method is None) == (args.example is None):
+        raise IonactError("give a method file, or --example NAME (see --list-examples)")
+    kw = load_method(args.method if args.method is not None else f"example:{args.example}")
+    if args.solve:
+        kw["solve"] = args.solve
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        d = design_adjuster(**kw)
+    if args.out:
+        with open(args.out, "w", encoding="utf-8") as fh:
+            json.dump(_jsonable(d.to_dict()), fh, indent=2, ensure_ascii=False)
+    if args.plot:
+        try:
+            d.plot(args.plot)
+        except ImportError:
+            raise IonactError("--plot needs matplotlib: pip install 'ionact[plot]'") from None
+    _emit(args, d.to_dict(), d.report())
+    return 0
+
+
 def cmd_demo(args) -> int:
     from .demo import run
 
@@ -195,6 +223,16 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("-m", "--model", default="auto", choices=model_names(), help="activity model (default auto)")
     c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
     c.set_defaults(func=cmd_convert)
+
+    de = sub.add_parser("design", help="design or evaluate an ionic strength adjuster from a method file")
+    de.add_argument("method", nargs="?", help="METHOD.toml (keys documented in the README)")
+    de.add_argument("--example", help="use a method file shipped with ionact (see --list-examples)")
+    de.add_argument("--list-examples", action="store_true", help="list the shipped method files")
+    de.add_argument("--solve", choices=["stock", "ratio", "none"], help="override the file's solve mode")
+    de.add_argument("--json", action="store_true", help="print the design as JSON")
+    de.add_argument("--out", help="also write the design JSON to this file (input for 'ionact check')")
+    de.add_argument("--plot", help="write a figure of the design to this PNG file")
+    de.set_defaults(func=cmd_design)
 
     d = sub.add_parser("demo", help="run the built-in invented scenario")
     d.set_defaults(func=cmd_demo)

@@ -21,6 +21,8 @@ __all__ = [
     "pitzer_binary_table",
     "pitzer_mixing_table",
     "canonical_name",
+    "acid_table",
+    "ksp_table",
 ]
 
 
@@ -176,3 +178,15 @@ def pitzer_mixing_table() -> tuple[dict[frozenset[str], float], dict[tuple[froze
         else:
             psi[(frozenset((r["ion1"], r["ion2"])), r["ion3"])] = float(r["value"])
     return theta, psi
+
+
+@lru_cache(maxsize=1)
+def acid_table() -> dict[tuple[str, str], tuple[float, tuple[str, ...]]]:
+    """pKa at 25 °C, I = 0, keyed by (acid species, conjugate base species)."""
+    return {(r["acid"], r["base"]): (float(r["pka_25C"]), _src(r["source"])) for r in _rows("acids.csv")}
+
+
+@lru_cache(maxsize=1)
+def ksp_table() -> dict[str, tuple[float, tuple[str, ...]]]:
+    """log10 Ksp at 25 °C keyed by salt formula."""
+    return {r["salt"]: (float(r["log10_ksp_25C"]), _src(r["source"])) for r in _rows("ksp.csv")}

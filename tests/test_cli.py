@@ -68,3 +68,29 @@ def test_convert(capsys):
     assert rc == 2 and "opposite charge" in err
     rc, _, err = run(capsys, "convert", "Na+")
     assert rc == 2 and "exactly one" in err
+
+
+def test_design_examples_and_outputs(capsys, tmp_path):
+    rc, out, _ = run(capsys, "design", "--list-examples")
+    assert rc == 0 and "nitrate_irrigation" in out and "fluoride_buffered" in out
+    plot = tmp_path / "design.png"
+    saved = tmp_path / "design.json"
+    rc, out, _ = run(capsys, "design", "--example", "nitrate_irrigation", "--plot", str(plot), "--out", str(saved))
+    assert rc == 0 and "Stock recipe" in out and "Cautions" in out
+    assert plot.stat().st_size > 1000
+    data = json.loads(saved.read_text())
+    assert data["format"] == "ionact-adjuster-design" and data["analyte"] == "NO3-"
+    rc, out, _ = run(capsys, "design", "--example", "fluoride_buffered", "--json")
+    assert rc == 0 and json.loads(out)["buffer"]["acid"] == "CH3COOH"
+
+
+def test_design_method_file_errors(capsys, tmp_path):
+    bad = tmp_path / "bad.toml"
+    bad.write_text('analyte = "NO3-"\nflavour = "mint"\n')
+    rc, _, err = run(capsys, "design", str(bad))
+    assert rc == 2 and "flavour" in err
+    rc, _, err = run(capsys, "design", str(tmp_path / "missing.toml"))
+    assert rc == 2 and "cannot read" in err
+    bad.write_text("analyte = \n")
+    rc, _, err = run(capsys, "design", str(bad))
+    assert rc == 2 and "not valid TOML" in err
