@@ -36,6 +36,7 @@ from .errors import (
     ValidityRangeWarning,
     strict,
 )
+from .samples import SampleCheck, check_samples
 from .solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
 from .species import Ion, Salt
 from .water import nernst_slope
@@ -69,6 +70,8 @@ __all__ = [
     "compare_adjusters",
     "AdjusterDesign",
     "Buffer",
+    "check_samples",
+    "SampleCheck",
     "IonactError",
     "InputError",
     "UnitError",

@@ -334,6 +334,7 @@ class AdjusterDesign:
     buffer: dict | None = None
     name: str = ""
     linear_range: tuple[float, float] | None = None
+    background: str = "NaCl"
 
     def report(self) -> str:
         """A plain-text report of the design."""
@@ -406,6 +407,7 @@ class AdjusterDesign:
             "analyte_range_mol_per_l": list(self.analyte_range),
             "standards_mol_per_l": list(self.standards),
             "linear_range_mol_per_l": list(self.linear_range) if self.linear_range else None,
+            "background": self.background,
             "worst_error_mv": self.worst_error_mv,
             "worst_error_percent": self.worst_error_percent,
             "budget_mv": self.budget_mv,
@@ -1069,7 +1071,7 @@ def design_adjuster(
         sample_ionic_strength=(float(system.sample_I.min()), float(system.sample_I.max())),
         analyte_range=(float(an_levels[0]), float(an_levels[-1])), standards=tuple(float(x) for x in std_levels),
         stock_ions=stock_ions, worst_case=worst_case, scan=scan, gamma_profile=profile, buffer=buf_out,
-        name=name, linear_range=lin,
+        name=name, linear_range=lin, background=Salt.parse(background).text,
     )
 
 

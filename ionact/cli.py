@@ -172,6 +172,37 @@ def cmd_design(args) -> int:
     return 0
 
 
+def cmd_check(args) -> int:
+    from .samples import check_samples, read_samples_csv, report_to_text, write_report_csv
+
+    try:
+        with open(args.design, encoding="utf-8") as fh:
+            design = json.load(fh)
+    except OSError as exc:
+        raise IonactError(f"cannot read design {args.design}: {exc.strerror or exc}") from None
+    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        raise IonactError(f"design {args.design} is not valid JSON ({exc})") from None
+    cols, units, notes = read_samples_csv(args.samples)
+    dil = tuple(float(x) for x in args.dilutions.split(",")) if args.dilutions else (1, 2, 5, 10, 20, 50, 100)
+    cal = tuple(args.calibration) if args.calibration else None
+    n = len(next(iter(cols.values())))
+    r = check_samples(cols, design, calibration_range=cal, dilutions=dil, units=units,
+                      progress=(n >= 10000 and not args.quiet))
+    for note in notes:
+        print(f"ionact check: note: {note}", file=sys.stderr)
+    if args.out:
+        write_report_csv(r, args.out)
+    if args.plot:
+        try:
+            r.plot(args.plot)
+        except ImportError:
+            raise IonactError("--plot needs matplotlib: pip install 'ionact[plot]'") from None
+    data = {"model": r.model, "counts": r.counts(), "calibration_range_mol_per_l": list(r.calibration_range),
+            "envelope": list(r.envelope), "rows": r.rows()}
+    _emit(args, data, report_to_text(r) + (f"report written to {args.out}" if args.out else ""))
+    return 0
+
+
 def cmd_demo(args) -> int:
     from .demo import run
 
@@ -233,6 +264,18 @@ def build_parser() -> argparse.ArgumentParser:
     de.add_argument("--out", help="also write the design JSON to this file (input for 'ionact check')")
     de.add_argument("--plot", help="write a figure of the design to this PNG file")
     de.set_defaults(func=cmd_design)
+
+    ch = sub.add_parser("check", help="check a batch of samples against an adjuster design before measuring")
+    ch.add_argument("samples", help="SAMPLES.csv (columns documented in the README)")
+    ch.add_argument("--design", required=True, help="DESIGN.json written by 'ionact design --out'")
+    ch.add_argument("--out", help="write the per-sample report to this CSV")
+    ch.add_argument("--plot", help="write a figure of the batch to this PNG file")
+    ch.add_argument("--calibration", nargs=2, metavar=("LOW", "HIGH"), help="calibrated range, e.g. "
+                    "'0.5 mg/L as N' '30 mg/L as N' (default: the design's standards)")
+    ch.add_argument("--dilutions", help="allowed dilution factors, comma-separated (default 1,2,5,10,20,50,100)")
+    ch.add_argument("--json", action="store_true", help="print the results as JSON")
+    ch.add_argument("--quiet", action="store_true", help="no progress bar")
+    ch.set_defaults(func=cmd_check)
 
     d = sub.add_parser("demo", help="run the built-in invented scenario")
     d.set_defaults(func=cmd_demo)

@@ -94,3 +94,26 @@ def test_design_method_file_errors(capsys, tmp_path):
     bad.write_text("analyte = \n")
     rc, _, err = run(capsys, "design", str(bad))
     assert rc == 2 and "not valid TOML" in err
+
+
+def test_check_command(capsys, tmp_path):
+    from importlib import resources
+
+    design = tmp_path / "design.json"
+    assert main(["design", "--example", "nitrate_irrigation", "--out", str(design)]) == 0
+    capsys.readouterr()
+    batch = resources.files("ionact").joinpath("examples", "irrigation_batch.csv")
+    out = tmp_path / "report.csv"
+    rc, text, _ = run(capsys, "check", str(batch), "--design", str(design), "--out", str(out),
+                      "--plot", str(tmp_path / "b.png"))
+    assert rc == 0 and "needs dilution" in text and out.exists()
+    rc, text, _ = run(capsys, "check", str(batch), "--design", str(design), "--json")
+    data = json.loads(text)
+    assert sum(data["counts"].values()) == 14 and data["counts"]["invalid input"] == 5
+    # inputs that cannot be read: non-zero exit, one line
+    rc, _, err = run(capsys, "check", str(tmp_path / "nope.csv"), "--design", str(design))
+    assert rc == 2 and "cannot read" in err
+    bad = tmp_path / "bad.json"
+    bad.write_text("{")
+    rc, _, err = run(capsys, "check", str(batch), "--design", str(bad))
+    assert rc == 2 and "not valid JSON" in err

@@ -1,0 +1,177 @@
+"""The analyst's batch range check and dilution planner."""
+
+import json
+import math
+
+import numpy as np
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+import ionact as ia
+from ionact.samples import (
+    CANNOT,
+    DILUTE,
+    INSIDE,
+    INVALID,
+    _safe_cell,
+    check_samples,
+    read_report_csv,
+    read_samples_csv,
+    write_report_csv,
+)
+
+
+@pytest.fixture(scope="module")
+def design():
+    # nitrate method: 2 mol/L (NH4)2SO4 at 2 mL per 100 mL, samples proven up to I = 0.05,
+    # standards 1e-5 … 1e-3 mol/L, budget 1 mV, Davies (see test_adjuster for the hand calculation)
+    return ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, sample_ionic_strength=(0.0, 0.05),
+                              analyte_range=(1e-5, 1e-3), volume_ratio=0.02, tolerance_mv=1.0, solve="none",
+                              model="davies")
+
+
+def test_hand_worked_cases(design):
+    # A: 1e-4 mol/L nitrate at I = 0.01: inside 1e-5–1e-3 and I ≤ 0.05 → inside, no dilution.
+    # B: 8e-3 mol/L at I = 0.02: ×2 → 4e-3, ×5 → 1.6e-3 (both above 1e-3), ×10 → 8e-4 inside → dilute ×10.
+    # C: 0.5 mol/L at I = 0.02: even ×100 gives 5e-3 > 1e-3 → cannot be brought into range.
+    r = check_samples({"sample_id": ["A", "B", "C"], "analyte": [1e-4, 8e-3, 0.5],
+                       "ionic_strength": [0.01, 0.02, 0.02]}, design)
+    assert r.status == (INSIDE, DILUTE, CANNOT)
+    assert r.dilution[0] == 1 and r.dilution[1] == 10 and math.isnan(r.dilution[2])
+    # the treated analyte at ×10: 8e-3 / 10 / 1.02
+    assert r.treated_analyte[1] == pytest.approx(8e-3 / 10 / 1.02)
+    assert "×10" in r.reason[1] and "above the calibrated" in r.reason[1]
+    assert "×100" in r.reason[2]
+    assert r.error_mv[0] < 1.0
+
+
+def test_envelope_forces_dilution(design):
+    # I = 0.3 is above the design's proven 0.05: ×10 brings it to 0.03
+    r = check_samples({"analyte": [5e-4], "ionic_strength": [0.3]}, design, dilutions=(1, 2, 5, 10))
+    assert r.status == (DILUTE,) and r.dilution[0] == 10
+    assert "above the design's" in r.reason[0]
+
+
+def test_sources_of_ionic_strength(design):
+    r = check_samples({"sample_id": ["ions", "ec", "tds", "stated"],
+                       "analyte [mg/L as N]": [5, 5, 5, 5],
+                       "Na+ [mg/L]": [230, None, None, None], "Cl- [mg/L]": [354.5, None, None, None],
+                       "conductivity [uS/cm]": [None, 1000, None, None], "tds [mg/L]": [None, None, 400, None],
+                       "ionic_strength": [None, None, None, 0.02]}, design)
+    assert r.ionic_strength_source == ("ions", "conductivity (russell)", "tds (langelier)", "stated")
+    assert r.ionic_strength[0] == pytest.approx(0.01 / (ia.water.density(25) / 1000), rel=1e-3)
+    assert r.ionic_strength[1] == pytest.approx(0.016)
+    assert r.ionic_strength[2] == pytest.approx(0.01)
+    assert r.unit == "mg/L as N"
+
+
+bad_cells = st.sampled_from(["", "abc", "-1", "nan", "inf", None])
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.lists(st.tuples(st.booleans(), st.floats(1e-6, 1e-1), st.floats(0, 0.2), bad_cells,
+                          st.sampled_from(["analyte", "ionic_strength"])), min_size=1, max_size=30))
+def test_bad_rows_keep_their_place(design, rows):
+    ids, an, ist, expect_bad = [], [], [], []
+    for k, (good, a, i, bad, where) in enumerate(rows):
+        ids.append(f"s{k}")
+        if good:
+            an.append(a)
+            ist.append(i)
+        else:
+            an.append(bad if where == "analyte" else a)
+            ist.append(bad if where == "ionic_strength" else i)
+        expect_bad.append(not good)
+    r = check_samples({"sample_id": ids, "analyte": an, "ionic_strength": ist}, design)
+    assert r.sample_id == tuple(ids)
+    for k, bad in enumerate(expect_bad):
+        assert (r.status[k] == INVALID) == bad, (k, r.status[k], r.reason[k])
+        if bad:
+            assert r.reason[k]
+            assert math.isnan(r.error_mv[k])
+        else:
+            assert np.isfinite(r.error_mv[k])
+
+
+def test_nan_policy_isolated(design):
+    # a NaN gives an invalid-row status in that position only; neighbours are untouched
+    base = {"analyte": [1e-4, 1e-4, 1e-4], "ionic_strength": [0.01, 0.01, 0.01]}
+    ref = check_samples(base, design)
+    withnan = check_samples({"analyte": [1e-4, float("nan"), 1e-4], "ionic_strength": [0.01, 0.01, 0.01]}, design)
+    assert withnan.status == (INSIDE, INVALID, INSIDE)
+    assert withnan.error_mv[0] == ref.error_mv[0] and withnan.error_mv[2] == ref.error_mv[2]
+
+
+def test_duplicate_ids(design):
+    r = check_samples({"sample_id": ["x", "y", "x"], "analyte": [1e-4] * 3, "ionic_strength": [0.01] * 3}, design)
+    assert r.status[2] == INVALID and "duplicate sample id 'x'" in r.reason[2]
+    assert r.status[0] == INSIDE
+
+
+def test_design_json_versions(design):
+    d = design.to_dict()
+    r = check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, json.loads(json.dumps(d)))
+    assert r.status == (INSIDE,)
+    old = dict(d, version=0)
+    with pytest.raises(ia.InputError, match="version 0"):
+        check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, old)
+    with pytest.raises(ia.InputError, match="format"):
+        check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, {"format": "other"})
+
+
+def test_whole_input_errors(design):
+    with pytest.raises(ia.InputError, match="'analyte' column"):
+        check_samples({"ionic_strength": [0.01]}, design)
+    with pytest.raises(ia.InputError, match="source of ionic strength"):
+        check_samples({"analyte": [1e-4]}, design)
+    with pytest.raises(ia.InputError, match="≥ 1"):
+        check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, design, dilutions=(0.5,))
+
+
+def test_csv_round_trip(design, tmp_path):
+    r = check_samples({"sample_id": ["=cmd()", "+x", "ok", "-minus"], "analyte": [1e-4, 8e-3, 0.5, "bad"],
+                       "ionic_strength": [0.01, 0.02, 0.02, 0.01]}, design)
+    out = tmp_path / "report.csv"
+    write_report_csv(r, out)
+    text = out.read_text()
+    assert "'=cmd()" in text and "'+x" in text and "'-minus" in text
+    back = read_report_csv(out)
+    assert [b["sample_id"] for b in back] == ["=cmd()", "+x", "ok", "-minus"]
+    for b, row in zip(back, r.rows(), strict=True):
+        for k, v in row.items():
+            if isinstance(v, float):
+                assert (math.isnan(v) and math.isnan(b[k])) or b[k] == v
+            else:
+                assert b[k] == v
+
+
+def test_safe_cells():
+    assert _safe_cell(-0.5) == "-0.5"  # numbers stay numbers
+    assert _safe_cell("@SUM(A1)") == "'@SUM(A1)"
+    assert _safe_cell(float("nan")) == ""
+
+
+def test_units_row_and_ragged_csv(tmp_path):
+    p = tmp_path / "s.csv"
+    p.write_text("sample_id,analyte,conductivity\nunits,mg/L as N,uS/cm\na,5,300\nb,6\nc,7,400,extra\n",
+                 encoding="utf-8")
+    cols, units, notes = read_samples_csv(p)
+    assert units == {"analyte": "mg/L as N", "conductivity": "uS/cm"}
+    assert cols["conductivity"] == ["300", "", "400"]
+    assert notes and "row 5" in notes[0]
+    with pytest.raises(ia.InputError, match="UTF-8"):
+        q = tmp_path / "latin.csv"
+        q.write_bytes("sample_id,analyte\nRío,5\n".encode("latin-1"))
+        read_samples_csv(q)
+    with pytest.raises(ia.InputError, match="empty"):
+        e = tmp_path / "e.csv"
+        e.write_text("")
+        read_samples_csv(e)
+
+
+def test_plot(design, tmp_path):
+    r = check_samples({"analyte": [1e-4, 8e-3, 0.5, -1], "ionic_strength": [0.01, 0.02, 0.02, 0.01]}, design)
+    path = tmp_path / "batch.png"
+    r.plot(path)
+    assert path.stat().st_size > 1000
