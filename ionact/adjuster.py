@@ -29,7 +29,6 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy import optimize
 
 from . import water
 from .activity import _options, select_model
@@ -657,6 +656,8 @@ def design_adjuster(
     """
     if solve not in ("stock", "ratio", "none"):
         raise InputError(f"solve={solve!r}: allowed 'stock', 'ratio', 'none'")
+    from scipy import optimize  # imported here to keep `import ionact` light
+
     an = resolve_ion(analyte)
     if an.charge == 0:
         raise InputError(f"analyte {an.name} is neutral; an ion-selective electrode measures an ion")

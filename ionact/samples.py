@@ -208,6 +208,35 @@ def _unit_factor(unit: str, ion: Ion) -> float:
 
 def _to_float(cells) -> tuple[np.ndarray, list[str | None]]:
     """Parse cells to floats; NaN and a reason for empty, unparseable, negative or infinite cells."""
+    fast = _to_float_fast(cells)
+    if fast is not None:
+        return fast
+    return _to_float_slow(cells)
+
+
+def _to_float_fast(cells):
+    """Whole-column parse when every non-empty cell is a plain finite, non-negative number."""
+    try:
+        arr = np.array(cells, dtype=object)
+        if arr.ndim != 1:
+            return None
+        empty = np.array([c is None or (isinstance(c, str) and not c.strip()) for c in cells], dtype=bool) \
+            if arr.dtype == object else np.zeros(len(cells), dtype=bool)
+        vals = np.full(len(cells), np.nan)
+        if np.any(~empty):
+            vals[~empty] = np.asarray(arr[~empty], dtype=float)
+    except (ValueError, TypeError):
+        return None
+    bad = ~empty & (~np.isfinite(vals) | (vals < 0))
+    if np.any(bad):
+        return None
+    why: list[str | None] = [None] * len(cells)
+    for i in np.flatnonzero(empty):
+        why[i] = "missing"
+    return vals, why
+
+
+def _to_float_slow(cells) -> tuple[np.ndarray, list[str | None]]:
     vals = np.full(len(cells), np.nan)
     why: list[str | None] = [None] * len(cells)
     for i, c in enumerate(cells):
@@ -699,18 +728,44 @@ REPORT_COLUMNS = ("sample_id", "status", "dilution", "analyte", "treated_analyte
                   "reason")
 
 
+def _num_column(values: np.ndarray) -> list[str]:
+    """Shortest round-trip text of each float (numpy's repr); empty for NaN."""
+    arr = np.asarray(values, dtype=float)
+    text = arr.astype(str)
+    text[np.isnan(arr)] = ""
+    return text.tolist()
+
+
+def _text_column(values) -> list[str]:
+    return [_safe_cell(v) for v in values]
+
+
 def write_report_csv(result: SampleCheck, path_or_file) -> None:
-    """Write the per-sample report as CSV (columns documented in the README)."""
-    rows = result.rows()
-    header = list(rows[0].keys()) if rows else [c if "analyte" not in c else f"{c} [{result.unit}]"
-                                                for c in REPORT_COLUMNS]
+    """Write the per-sample report as CSV (columns documented in the README).
+
+    Numbers are written in their shortest exact form, so reading the file back gives the
+    same floats; text that a spreadsheet would take for a formula is neutralised.
+    """
+    f, u = result.unit_factor, result.unit
+    columns = [
+        ("sample_id", _text_column(result.sample_id)),
+        ("status", _text_column(result.status)),
+        ("dilution", _num_column(result.dilution)),
+        (f"analyte [{u}]", _num_column(result.analyte / f)),
+        (f"treated_analyte [{u}]", _num_column(result.treated_analyte / f)),
+        ("ionic_strength [mol/kg]", _num_column(result.ionic_strength)),
+        ("ionic_strength_source", _text_column(result.ionic_strength_source)),
+        ("treated_ionic_strength [mol/kg]", _num_column(result.treated_ionic_strength)),
+        ("gamma_error [mV]", _num_column(result.error_mv)),
+        ("gamma_error [%]", _num_column(result.error_percent)),
+        ("reason", _text_column(result.reason)),
+    ]
     own = isinstance(path_or_file, str | bytes) or hasattr(path_or_file, "__fspath__")
     fh = open(path_or_file, "w", encoding="utf-8", newline="") if own else path_or_file
     try:
         w = csv.writer(fh)
-        w.writerow(header)
-        for r in rows:
-            w.writerow([_safe_cell(r[h]) for h in header])
+        w.writerow([c for c, _ in columns])
+        w.writerows(zip(*(v for _, v in columns), strict=True))
     finally:
         if own:
             fh.close()

@@ -74,22 +74,25 @@ def _lg_bates_guggenheim(z2, sqrt_i, a):
 def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True):
     z = np.asarray(charge, dtype=float)
     i = np.asarray(ionic_strength, dtype=float)
-    if np.any(i < 0):
+    lo, hi = (float(np.nanmin(i)), float(np.nanmax(i))) if i.size and not np.all(np.isnan(i)) else (0.0, 0.0)
+    if lo < 0:
         raise InputError(f"{model}: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative; allowed: ≥ 0")
     t = np.asarray(temperature, dtype=float)
     a = water._dh_a(water._temperature(t, model))
-    finite = i[np.isfinite(i)]
-    if warn and model in RANGES and finite.size and finite.max() > RANGES[model]:
+    if warn and model in RANGES and hi > RANGES[model] and np.isfinite(hi):
         warn_range(
-            f"model {model}: ionic strength {finite.max():.4g} mol/kg is above its range "
+            f"model {model}: ionic strength {hi:.4g} mol/kg is above its range "
             f"0–{RANGES[model]:g} mol/kg",
             stacklevel=4,
         )
     return z, i, t, a
 
 
+_LN10 = 2.302585092994046
+
+
 def _gamma(lg):
-    g = np.power(10.0, lg)
+    g = np.exp(_LN10 * lg)
     return float(g) if np.ndim(g) == 0 else g
 
 

@@ -54,14 +54,25 @@ def j_function(x):
 
 
 def _g(x):
+    """g(x), g'(x) and exp(−x), with the series near x = 0."""
     xs = np.maximum(x, 1e-12)
-    g = 2.0 * (1.0 - (1.0 + xs) * np.exp(-xs)) / xs**2
-    gp = -2.0 * (1.0 - (1.0 + xs + 0.5 * xs**2) * np.exp(-xs)) / xs**2
+    ex = np.exp(-xs)
+    inv2 = 1.0 / (xs * xs)
+    g = 2.0 * (1.0 - (1.0 + xs) * ex) * inv2
+    gp = -2.0 * (1.0 - (1.0 + xs + 0.5 * xs * xs) * ex) * inv2
     small = x < 1e-4
     if np.any(small):
         g = np.where(small, 1.0 - 2.0 * x / 3.0 + x**2 / 4.0, g)
         gp = np.where(small, -2.0 * x / 3.0 + x**2 / 2.0, gp)
-    return g, gp
+    return g, gp, np.exp(-x)
+
+
+def _g_pairs(alpha: np.ndarray, sq: np.ndarray):
+    """g, g', exp(−α√I) for an (nc, na) matrix of α, evaluated once per distinct α."""
+    ua, inv = np.unique(alpha, return_inverse=True)
+    g, gp, ex = _g(ua[:, None] * sq[None, :])
+    inv = inv.reshape(alpha.shape)
+    return g[inv], gp[inv], ex[inv]
 
 
 @dataclass(frozen=True)
@@ -232,14 +243,16 @@ def _terms(p: PitzerSet, mc, ma, t, aphi, unsymmetrical=True):
     sq = np.sqrt(ionic)
     i_s = np.maximum(ionic, 1e-30)
     b0, b1, cphi = _at_temperature(p, t)
-    x1 = p.alpha1[..., None] * sq[None, None, :]
-    x2 = p.alpha2[..., None] * sq[None, None, :]
-    g1, g1p = _g(x1)
-    g2, g2p = _g(x2)
-    beta2 = p.beta2[..., None]
-    B = b0 + b1 * g1 + beta2 * g2
-    Bp = (b1 * g1p + beta2 * g2p) / i_s
-    Bphi = b0 + b1 * np.exp(-x1) + beta2 * np.exp(-x2)
+    g1, g1p, e1 = _g_pairs(p.alpha1, sq)
+    B = b0 + b1 * g1
+    Bp = b1 * g1p / i_s
+    Bphi = b0 + b1 * e1
+    if np.any(p.beta2):
+        g2, g2p, e2 = _g_pairs(p.alpha2, sq)
+        beta2 = p.beta2[..., None]
+        B = B + beta2 * g2
+        Bp = Bp + beta2 * g2p / i_s
+        Bphi = Bphi + beta2 * e2
     C = cphi / (2.0 * np.sqrt(p.zc[:, None] * p.za[None, :]))[..., None]
     Z = p.zc @ mc + p.za @ ma
     if unsymmetrical:
