@@ -111,6 +111,14 @@ class Buffer:
     total: float | str = 1.0
     pka: float | None = None
 
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "pH", _num(self.pH, "buffer pH", 0.0, 14.0, lo_open=True))
+        if self.pka is not None:
+            object.__setattr__(self, "pka", _num(self.pka, "buffer pka", -2.0, 16.0))
+        for name in ("acid", "base"):
+            if not isinstance(getattr(self, name), str):
+                raise InputError(f"buffer {name} {getattr(self, name)!r} must be a species or salt formula")
+
 
 @dataclass(frozen=True)
 class Check:
@@ -465,16 +473,35 @@ class AdjusterDesign:
         return fig
 
 
+def _num(value, name: str, lo: float = -math.inf, hi: float = math.inf, lo_open: bool = False) -> float:
+    """A finite float within [lo, hi] (or (lo, hi] with lo_open), else InputError naming the value."""
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} {value!r} is not a number") from None
+    bad_lo = v <= lo if lo_open else v < lo
+    if not math.isfinite(v) or bad_lo or v > hi:
+        rng = f"{'(' if lo_open else '['}{lo:g}, {hi:g}]"
+        raise InputError(f"{name} {value!r} is outside the allowed range {rng}")
+    return v
+
+
 def _budget(tolerance_mv, tolerance_percent, z: int, t: float) -> float:
     if (tolerance_mv is None) == (tolerance_percent is None):
         raise InputError("give exactly one error budget: tolerance_mv=… or tolerance_percent=…")
     s = abs(float(water.nernst_slope(z, t)))
     if tolerance_mv is not None:
-        v = float(tolerance_mv)
+        try:
+            v = float(tolerance_mv)
+        except (TypeError, ValueError):
+            raise InputError(f"tolerance_mv {tolerance_mv!r} is not a number") from None
         if not (v > 0 and math.isfinite(v)):
             raise InputError(f"tolerance_mv {tolerance_mv!r} must be > 0 mV")
         return v
-    v = float(tolerance_percent)
+    try:
+        v = float(tolerance_percent)
+    except (TypeError, ValueError):
+        raise InputError(f"tolerance_percent {tolerance_percent!r} is not a number") from None
     if not (v > 0 and math.isfinite(v)):
         raise InputError(f"tolerance_percent {tolerance_percent!r} must be > 0 %")
     return s * math.log10(1.0 + v / 100.0)
@@ -667,12 +694,12 @@ def design_adjuster(
         raise InputError(f"volume_ratio {volume_ratio!r} is not a number") from None
     if not (r0 > 0 and math.isfinite(r0)):
         raise InputError(f"volume_ratio {volume_ratio!r} must be > 0 (ISA volume per sample volume)")
-    if not (max_ratio > 0):
-        raise InputError(f"max_ratio {max_ratio!r} must be > 0")
-    if not (0 <= solubility_margin < 1):
-        raise InputError(f"solubility_margin {solubility_margin!r} must be in [0, 1)")
-    t = float(temperature)
-    t_low = t if lowest_temperature is None else float(lowest_temperature)
+    max_ratio = _num(max_ratio, "max_ratio", 0.0, 100.0, lo_open=True)
+    solubility_margin = _num(solubility_margin, "solubility_margin", 0.0, 0.99)
+    t = _num(temperature, "temperature (°C)", 0.0, 100.0)
+    t_low = t if lowest_temperature is None else _num(lowest_temperature, "lowest_temperature (°C)", -10.0, 100.0)
+    if sample_ph is not None:
+        sample_ph = _num(sample_ph, "sample_ph", 0.0, 14.0)
     budget = _budget(tolerance_mv, tolerance_percent, an.charge, t)
     if not isinstance(salts, Mapping) or not salts:
         raise InputError("salts must be a non-empty mapping of stock component -> mol/L")
@@ -754,8 +781,6 @@ def design_adjuster(
         total = _mol_per_l(buffer.total, "buffer total")
         if total <= 0:
             raise InputError("buffer total must be > 0 mol/L")
-        if not (0 < buffer.pH < 14):
-            raise InputError(f"buffer pH {buffer.pH!r} must be in 0–14")
         comps += [Component(acid_c.label, acid_c.ions, acid_c.molar_mass, "buffer-acid", acid_c.hazards,
                             acid_c.salt),
                   Component(base_c.label, base_c.ions, base_c.molar_mass, "buffer-base", base_c.hazards,

@@ -63,6 +63,12 @@ def _table(data: dict, key: str, src: str, required: bool = True) -> dict:
     return v
 
 
+def _pair(value, where: str, src: str) -> tuple:
+    if not isinstance(value, list | tuple) or len(value) != 2:
+        raise InputError(f"{src}: {where} must be a pair [low, high], got {value!r}")
+    return tuple(value)
+
+
 def load_method(path) -> dict:
     """Read a method file into keyword arguments for :func:`ionact.design_adjuster`.
 
@@ -109,7 +115,7 @@ def load_method(path) -> dict:
     if len(given) != 1:
         raise InputError(f"{src}: [samples] needs exactly one of ionic_strength, conductivity or tds")
     key = given[0]
-    kw["sample_ionic_strength" if key == "ionic_strength" else key] = tuple(samples[key])
+    kw["sample_ionic_strength" if key == "ionic_strength" else key] = _pair(samples[key], f"[samples] {key}", src)
     if "background" in samples:
         kw["background"] = samples["background"]
     if "rule" in samples:
@@ -124,7 +130,7 @@ def load_method(path) -> dict:
         if key in adj:
             kw[key] = adj[key]
     if "sample_acidity" in adj:
-        kw["sample_acidity"] = tuple(adj["sample_acidity"])
+        kw["sample_acidity"] = _pair(adj["sample_acidity"], "[adjuster] sample_acidity", src)
     if "buffer" in adj:
         b = adj["buffer"]
         if not isinstance(b, dict):
@@ -132,14 +138,18 @@ def load_method(path) -> dict:
         _check_keys(b, _BUFFER, "[adjuster.buffer]", src)
         kw["buffer"] = Buffer(acid=_need(b, "acid", "[adjuster.buffer]", src),
                               base=_need(b, "base", "[adjuster.buffer]", src),
-                              pH=float(_need(b, "pH", "[adjuster.buffer]", src)),
+                              pH=_need(b, "pH", "[adjuster.buffer]", src),
                               total=b.get("total", 1.0), pka=b.get("pka"))
     el = _table(data, "electrode", src, required=False)
     _check_keys(el, _ELECTRODE, "[electrode]", src)
     if "linear_range" in el:
-        kw["linear_range"] = tuple(el["linear_range"])
+        kw["linear_range"] = _pair(el["linear_range"], "[electrode] linear_range", src)
     if "selectivity" in el:
+        if not isinstance(el["selectivity"], dict):
+            raise InputError(f"{src}: [electrode.selectivity] must be a table of ion = K")
         kw["selectivity"] = dict(el["selectivity"])
+    if "standards" in kw and not isinstance(kw["standards"], list):
+        raise InputError(f"{src}: [analyte_range] standards must be a list")
     mi = _table(data, "matrix_ions", src, required=False)
     if mi:
         kw["matrix_ions"] = dict(mi)

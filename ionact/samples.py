@@ -41,6 +41,8 @@ INSIDE, DILUTE, CANNOT, INVALID = "inside", "needs dilution", "cannot be brought
 STATUSES = (INSIDE, DILUTE, CANNOT, INVALID)
 DEFAULT_DILUTIONS = (1, 2, 5, 10, 20, 50, 100)
 CHUNK = 20000
+MAX_ANALYTE = 20.0  # mol/L: beyond any real solution
+MAX_IONIC_STRENGTH = 25.0  # mol/kg: beyond any real water sample
 
 
 @dataclass(frozen=True)
@@ -445,6 +447,14 @@ def check_samples(
     for i in np.flatnonzero(~have):
         if reasons[i] is None:
             reasons[i] = "no ionic strength: every source column is empty for this row"
+    # physically impossible values are input errors, not samples to dilute
+    for i in np.flatnonzero(np.isfinite(analyte) & (analyte > MAX_ANALYTE)):
+        if reasons[i] is None:
+            reasons[i] = f"analyte {analyte[i]:.4g} mol/L is impossible (above {MAX_ANALYTE:g} mol/L)"
+    for i in np.flatnonzero(np.isfinite(i_val) & (i_val > MAX_IONIC_STRENGTH)):
+        if reasons[i] is None:
+            reasons[i] = (f"ionic strength {i_val[i]:.4g} mol/kg ({sources[i]}) is impossible for a water sample "
+                          f"(above {MAX_IONIC_STRENGTH:g})")
     valid = np.array([r is None for r in reasons]) & np.isfinite(analyte) & np.isfinite(i_val)
 
     # background salt supplies the matrix where only I is known

@@ -1,0 +1,317 @@
+"""A catalogue of bad inputs across the Python API and the command line.
+
+Each case asserts the exact exception type (or the exit status) and that the message names
+the offending value. Then Hypothesis fuzzes every parser: nothing escapes but IonactError.
+"""
+
+import json
+import warnings
+
+import numpy as np
+import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
+
+import ionact as ia
+from ionact.cli import main
+from ionact.errors import (
+    InfeasibleDesignError,
+    InputError,
+    IonactError,
+    MissingParameterError,
+    UnitError,
+    UnknownSpeciesError,
+    ValidityRangeError,
+)
+from ionact.method import load_method
+from ionact.samples import check_samples, read_samples_csv
+from ionact.units import parse_amount
+
+JOB = dict(sample_ionic_strength=(0, 0.01), analyte_range=(1e-5, 1e-3), tolerance_mv=0.5, solve="none",
+           model="davies")
+
+
+def _design(**kw):
+    args = dict(analyte="F-", salts={"NaCl": 1.0}, **JOB)
+    args.update(kw)
+    return ia.design_adjuster(**args)
+
+
+@pytest.fixture(scope="module")
+def design_dict():
+    return _design().to_dict()
+
+
+def _strict(fn):
+    def run():
+        with ia.strict():
+            return fn()
+    return run
+
+
+API_CASES = [
+    # malformed ion and salt formulas
+    ("ion-empty", lambda: ia.Ion.parse(""), InputError, "empty"),
+    ("ion-not-formula", lambda: ia.Ion.parse("Qq+"), InputError, "Qq"),
+    ("ion-charge-too-big", lambda: ia.Ion.parse("Ca+9"), InputError, "+9"),
+    ("ion-ambiguous", lambda: ia.Ion.parse("Fe(CN)63-"), InputError, "Fe(CN)63-"),
+    ("ion-double-sign", lambda: ia.Ion.parse("Na+-"), InputError, "Na+-"),
+    ("ion-not-text", lambda: ia.Ion.parse(3.5), InputError, "3.5"),
+    ("salt-unknown", lambda: ia.Salt.parse("NaXy"), UnknownSpeciesError, "NaXy"),
+    ("salt-unbalanced-ions", lambda: ia.Salt.parse("odd", ions={"Na+": 2, "Cl-": 1}), InputError, "+1"),
+    ("salt-bad-count", lambda: ia.Salt.parse("odd", ions={"Na+": -1, "Cl-": 1}), InputError, "-1"),
+    ("salt-hydrate-absurd", lambda: ia.Salt.parse("NaCl·99H2O"), InputError, "99"),
+    # unknown species
+    ("solution-unknown-ion", lambda: ia.Solution({"Xe+": 0.1, "Cl-": 0.1}), UnknownSpeciesError, "Xe+"),
+    ("model-unknown", lambda: ia.activity_coefficients(ia.Solution({}), "nonesuch"), UnknownSpeciesError,
+     "nonesuch"),
+    # wrong or missing units
+    ("unit-unknown", lambda: parse_amount("3 furlongs", "Na+"), UnitError, "furlong"),
+    ("unit-wrong-dimension", lambda: parse_amount("3 m/s", "Na+"), UnitError, "m/s"),
+    ("unit-missing", lambda: parse_amount("5", "Na+"), UnitError, "no unit"),
+    ("unit-mass-without-ion", lambda: parse_amount("35 mg/L"), UnitError, "35 mg/L"),
+    ("unit-as-wrong-element", lambda: parse_amount("1 mg/L as N", "Cl-"), UnitError, "no N"),
+    ("unit-meq-neutral", lambda: parse_amount("2 meq/L", "NH3"), UnitError, "2 meq/L"),
+    # negative, NaN, infinite amounts
+    ("amount-negative", lambda: ia.Solution({"Na+": -0.1, "Cl-": -0.1}), InputError, "-0.1"),
+    ("amount-nan", lambda: ia.Solution({"Na+": float("nan"), "Cl-": 0.1}), InputError, "nan"),
+    ("amount-inf", lambda: ia.Solution({"Na+": float("inf"), "Cl-": 0.1}), InputError, "inf"),
+    ("amount-negative-string", lambda: parse_amount("-2 mmol/L", "Na+"), InputError, "-2 mmol/L"),
+    # charge imbalance
+    ("charge-imbalance", lambda: ia.Solution({"Na+": 0.10, "Cl-": 0.09}), InputError, "+10 meq/kg"),
+    ("balance-wrong-sign", lambda: ia.Solution({"Na+": 0.10, "Cl-": 0.09}, balance="K+"), InputError, "K+"),
+    ("balance-neutral", lambda: ia.Solution({"Na+": 0.10, "Cl-": 0.09}, balance="NH3"), InputError, "NH3"),
+    # temperatures
+    ("temperature-below-absolute-zero", lambda: ia.water.density(-300.0), InputError, "-300"),
+    ("temperature-strict-high", _strict(lambda: ia.water.debye_huckel_a(120.0)), ValidityRangeError, "120"),
+    ("temperature-nan-solution", lambda: ia.Solution({"Na+": 0.1, "Cl-": 0.1}, temperature=float("nan")),
+     InputError, "nan"),
+    ("temperature-design", lambda: _design(temperature=130.0), InputError, "130"),
+    # ionic strength beyond every model
+    ("ionic-strength-beyond-pitzer", _strict(lambda: ia.activity_coefficients(
+        ia.Solution.from_salts({"NaCl": 7.0}), "pitzer")), ValidityRangeError, "7"),
+    ("ionic-strength-negative", lambda: ia.models.davies(1, -0.1), InputError, "-0.1"),
+    # missing model parameters
+    ("pitzer-missing-pair", lambda: ia.activity_coefficients(ia.Solution.from_salts({"CsCl": 0.1}), "pitzer"),
+     MissingParameterError, "Cs+–Cl-"),
+    ("sit-missing-pair", lambda: ia.activity_coefficients(ia.Solution.from_salts({"CsCl": 0.1}), "sit"),
+     MissingParameterError, "Cs+–Cl-"),
+    ("truesdell-jones-missing", lambda: ia.activity_coefficients(ia.Solution.from_salts({"KNO3": 0.1}),
+                                                                 "truesdell-jones"), MissingParameterError, "NO3-"),
+    ("density-missing-volume", lambda: ia.Solution.from_salts({"CuCl2": "0.1 mol/L"}), MissingParameterError,
+     "Cu+2"),
+    # infeasible designs and saturation
+    ("design-infeasible", lambda: _design(sample_ionic_strength=(0, 0.5), tolerance_mv=0.001, solve="stock"),
+     InfeasibleDesignError, "0.001"),
+    ("design-above-saturation", lambda: _design(salts={"KNO3": 5.0}), InfeasibleDesignError, "KNO3"),
+    ("design-tolerance-zero", lambda: _design(tolerance_mv=0), InputError, "tolerance_mv 0"),
+    ("design-ratio-negative", lambda: _design(volume_ratio=-1), InputError, "volume_ratio -1"),
+    ("design-analyte-in-isa", lambda: _design(salts={"NaF": 1.0}), InputError, "F-"),
+    ("design-ratio-text", lambda: _design(volume_ratio="lots"), InputError, "lots"),
+    ("design-margin-text", lambda: _design(solubility_margin="x"), InputError, "'x'"),
+    ("buffer-ph", lambda: ia.Buffer("CH3COOH", "CH3COONa", pH=15), InputError, "15"),
+    # conversions
+    ("activity-zero", lambda: ia.concentration_from_activity("Na+", 0.0), InputError, "0"),
+    ("activity-unreachable", lambda: ia.concentration_from_activity("Na+", 0.5, model="limiting"), InputError,
+     "0.5"),
+    ("counter-ion-sign", lambda: ia.concentration_from_activity("Na+", 1e-3, counter_ion="K+"), InputError, "K+"),
+    ("nernst-zero-charge", lambda: ia.nernst_slope(0), InputError, "charge 0"),
+]
+
+
+@pytest.mark.parametrize("fn,err,fragment", [c[1:] for c in API_CASES], ids=[c[0] for c in API_CASES])
+def test_api_bad_input(fn, err, fragment):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ia.ValidityRangeWarning)
+        with pytest.raises(err) as info:
+            fn()
+    assert type(info.value) is err
+    assert fragment in str(info.value)
+
+
+def test_catalogue_is_large():
+    assert len(API_CASES) + len(CLI_CASES) + len(FILE_CASES) >= 40
+
+
+# -- files: CSV and TOML and JSON ------------------------------------------------------------
+FILE_CASES = [
+    ("csv-empty", "samples.csv", b"", "empty"),
+    ("csv-header-only", "samples.csv", b"sample_id,analyte\n", "no sample rows"),
+    ("csv-latin1", "samples.csv", "sample_id,analyte\nRío,5\n".encode("latin-1"), "UTF-8"),
+    ("csv-duplicate-columns", "samples.csv", b"analyte,analyte\n1,2\n", "duplicate column"),
+    ("toml-unknown-key", "m.toml", b'analyte = "F-"\nflavour = "mint"\n', "flavour"),
+    ("toml-missing-analyte", "m.toml", b"[budget]\nmv = 1\n", "analyte"),
+    ("toml-missing-budget", "m.toml", b'analyte = "F-"\n', "budget"),
+    ("toml-syntax", "m.toml", b"analyte = \n", "not valid TOML"),
+    ("toml-bad-pair", "m.toml",
+     b'analyte = "F-"\n[budget]\nmv = 1\n[analyte_range]\nlow = 1e-5\nhigh = 1e-3\n[samples]\nionic_strength = 5\n'
+     b'[adjuster.stock]\nNaCl = 1\n', "ionic_strength"),
+    ("toml-unknown-nested", "m.toml",
+     b'analyte = "F-"\n[budget]\nmv = 1\nsize = 3\n', "size"),
+]
+
+
+@pytest.mark.parametrize("name,content,fragment", [c[1:] for c in FILE_CASES], ids=[c[0] for c in FILE_CASES])
+def test_bad_files(tmp_path, name, content, fragment):
+    p = tmp_path / name
+    p.write_bytes(content)
+    with pytest.raises(InputError) as info:
+        if name.endswith(".csv"):
+            read_samples_csv(p)
+        else:
+            load_method(p)
+    assert fragment in str(info.value)
+
+
+def test_duplicate_ids_and_ragged_rows_are_kept(tmp_path, design_dict):
+    p = tmp_path / "s.csv"
+    p.write_text("sample_id,analyte,ionic_strength\nA,1e-4,0.01\nA,1e-4,0.01\nB,1e-4\nC,1e-4,0.01,9\n")
+    cols, units, notes = read_samples_csv(p)
+    r = check_samples(cols, design_dict)
+    assert r.sample_id == ("A", "A", "B", "C")
+    assert r.status[1] == "invalid input" and "duplicate" in r.reason[1]
+    assert r.status[2] == "invalid input" and "ionic strength" in r.reason[2]
+    assert notes
+
+
+def test_design_json_other_version(design_dict):
+    with pytest.raises(InputError, match="version 7"):
+        check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, dict(design_dict, version=7))
+
+
+# -- the command line: one line, non-zero exit, no traceback ----------------------------------
+CLI_CASES = [
+    ("cli-unknown-salt", ["gamma", "NaQq=0.1"], "NaQq"),
+    ("cli-bad-term", ["strength", "NaCl"], "NaCl"),
+    ("cli-bad-unit", ["strength", "NaCl=3 furlongs"], "furlong"),
+    ("cli-imbalance", ["strength", "Na+=0.1"], "charge imbalance"),
+    ("cli-negative-activity", ["convert", "F-", "--activity", "-1"], "-1"),
+    ("cli-missing-method", ["design", "/nonexistent/method.toml"], "/nonexistent/method.toml"),
+    ("cli-unknown-example", ["design", "--example", "nonesuch"], "nonesuch"),
+    ("cli-missing-samples", ["check", "/nonexistent.csv", "--design", "/nonexistent.json"], "/nonexistent.json"),
+]
+
+
+@pytest.mark.parametrize("argv,fragment", [c[1:] for c in CLI_CASES], ids=[c[0] for c in CLI_CASES])
+def test_cli_user_errors(capsys, argv, fragment):
+    rc = main(argv)
+    out, err = capsys.readouterr()
+    assert rc == 2
+    assert err.count("\n") == 1 and "Traceback" not in err
+    assert fragment in err
+
+
+def test_cli_debug_raises():
+    with pytest.raises(UnknownSpeciesError):
+        main(["--debug", "gamma", "NaQq=0.1"])
+
+
+def test_cli_check_design_version(capsys, tmp_path, design_dict):
+    d = tmp_path / "d.json"
+    d.write_text(json.dumps(dict(design_dict, version=99)))
+    s = tmp_path / "s.csv"
+    s.write_text("analyte,ionic_strength\n1e-4,0.01\n")
+    rc = main(["check", str(s), "--design", str(d)])
+    _, err = capsys.readouterr()
+    assert rc == 2 and "version 99" in err
+
+
+# -- NaN policy in arrays ----------------------------------------------------------------------
+def test_nan_in_array_functions_stays_in_place():
+    i = np.array([0.01, np.nan, 0.1])
+    g = ia.models.davies(1, i)
+    assert np.isnan(g[1]) and np.isfinite(g[[0, 2]]).all()
+    assert g[0] == ia.models.davies(1, 0.01)
+    t = np.array([25.0, np.nan])
+    assert np.isnan(ia.water.density(t)[1]) and np.isfinite(ia.water.density(t)[0])
+
+
+# -- strict mode -------------------------------------------------------------------------------
+def test_strict_mode_and_warning_mode():
+    sol = ia.Solution.from_salts({"NaCl": 1.0})
+    with pytest.warns(ia.ValidityRangeWarning, match="davies"):
+        ia.activity_coefficients(sol, "davies")
+    with ia.strict(), pytest.raises(ValidityRangeError, match="0–0.5"):
+        ia.activity_coefficients(sol, "davies")
+    ia.activity_coefficients(sol, "pitzer")  # in range: no warning, no error
+
+
+# -- fuzzing: nothing but IonactError escapes ----------------------------------------------------
+@given(st.text(max_size=40))
+def test_fuzz_amount_strings(text):
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            parse_amount(text, "Na+")
+    except IonactError:
+        pass
+
+
+@given(st.text(alphabet="0123456789.eE+- mgLuolkM/asNCO()", max_size=24))
+def test_fuzz_unit_like_strings(text):
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            parse_amount(text, "NO3-")
+    except IonactError:
+        pass
+
+
+@given(st.text(max_size=30))
+def test_fuzz_salt_strings(text):
+    try:
+        ia.Salt.parse(text)
+    except IonactError:
+        pass
+
+
+cell = st.one_of(st.text(max_size=8), st.floats(allow_nan=True, allow_infinity=True).map(repr),
+                 st.sampled_from(["", "-1", "1e400", "0", "5", "=1+1"]))
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(st.lists(st.tuples(cell, cell, cell), min_size=1, max_size=12))
+def test_fuzz_csv_rows(tmp_path, design_dict, rows):
+    import csv
+    import io
+
+    buf = io.StringIO()
+    w = csv.writer(buf)
+    w.writerow(["sample_id", "analyte", "conductivity [uS/cm]"])
+    w.writerows(rows)
+    p = tmp_path / "fuzz.csv"
+    p.write_text(buf.getvalue(), encoding="utf-8")
+    try:
+        cols, units, _ = read_samples_csv(p)
+        r = check_samples(cols, design_dict, units=units)
+    except IonactError:
+        return
+    assert len(r) == len(cols["analyte"])
+
+
+toml_value = st.one_of(st.integers(-5, 5), st.floats(-1, 10, allow_nan=False), st.text(max_size=6),
+                       st.lists(st.floats(0, 1), max_size=3), st.booleans())
+
+
+@settings(max_examples=40, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(st.dictionaries(st.sampled_from(["analyte", "temperature", "model", "levels", "lowest_temperature", "x"]),
+                       toml_value, max_size=4),
+       st.dictionaries(st.sampled_from(["ionic_strength", "background", "conductivity"]), toml_value, max_size=2),
+       st.dictionaries(st.sampled_from(["volume_ratio", "solve", "max_ratio"]), toml_value, max_size=2))
+def test_fuzz_method_files(tmp_path, top, samples, adjuster):
+    def fmt(v):
+        return json.dumps(v)
+
+    lines = [f"{k} = {fmt(v)}" for k, v in top.items()]
+    lines += ["[budget]", "mv = 0.5", "[analyte_range]", "low = 1e-5", "high = 1e-3", "[samples]"]
+    lines += [f"{k} = {fmt(v)}" for k, v in samples.items()]
+    lines += ["[adjuster]"] + [f"{k} = {fmt(v)}" for k, v in adjuster.items()]
+    lines += ["[adjuster.stock]", "NaCl = 1.0"]
+    p = tmp_path / "fuzz.toml"
+    p.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            ia.design_adjuster(**load_method(p))
+    except IonactError:
+        pass
