@@ -38,7 +38,7 @@ from .errors import (
 )
 from .samples import SampleCheck, check_samples
 from .solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
-from .species import Ion, Salt
+from .species import Ion, Salt, register_ion
 from .water import nernst_slope
 
 __all__ = [
@@ -47,6 +47,7 @@ __all__ = [
     "water",
     "Ion",
     "Salt",
+    "register_ion",
     "Solution",
     "ionic_strength_from_conductivity",
     "ionic_strength_from_tds",

@@ -487,24 +487,13 @@ def _num(value, name: str, lo: float = -math.inf, hi: float = math.inf, lo_open:
 
 
 def _budget(tolerance_mv, tolerance_percent, z: int, t: float) -> float:
+    """The error budget as |ΔE| in mV (a percentage is converted with the Nernst slope)."""
     if (tolerance_mv is None) == (tolerance_percent is None):
         raise InputError("give exactly one error budget: tolerance_mv=… or tolerance_percent=…")
-    s = abs(float(water.nernst_slope(z, t)))
     if tolerance_mv is not None:
-        try:
-            v = float(tolerance_mv)
-        except (TypeError, ValueError):
-            raise InputError(f"tolerance_mv {tolerance_mv!r} is not a number") from None
-        if not (v > 0 and math.isfinite(v)):
-            raise InputError(f"tolerance_mv {tolerance_mv!r} must be > 0 mV")
-        return v
-    try:
-        v = float(tolerance_percent)
-    except (TypeError, ValueError):
-        raise InputError(f"tolerance_percent {tolerance_percent!r} is not a number") from None
-    if not (v > 0 and math.isfinite(v)):
-        raise InputError(f"tolerance_percent {tolerance_percent!r} must be > 0 %")
-    return s * math.log10(1.0 + v / 100.0)
+        return _num(tolerance_mv, "tolerance_mv", 0.0, 1e3, lo_open=True)
+    pct = _num(tolerance_percent, "tolerance_percent", 0.0, 1e3, lo_open=True)
+    return abs(float(water.nernst_slope(z, t))) * math.log10(1.0 + pct / 100.0)
 
 
 def _samples(sample_ionic_strength, samples, conductivity, tds, background, rule, t, n_levels, ion_of):

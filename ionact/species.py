@@ -16,7 +16,7 @@ from functools import lru_cache
 from .errors import InputError, UnknownSpeciesError
 from .tables import IonRecord, SaltRecord, canonical_name, ion_table, salt_table
 
-__all__ = ["Ion", "Salt", "parse_ion", "parse_salt", "resolve_ion"]
+__all__ = ["Ion", "Salt", "parse_ion", "parse_salt", "resolve_ion", "register_ion"]
 
 _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁺⁻−–", "0123456789+--" + "-")
 _RE_CARET = re.compile(r"^(?P<f>.+?)\^\{?(?:(?P<n1>\d*)(?P<s1>[+-])|(?P<s2>[+-])(?P<n2>\d*))\}?$")
@@ -229,6 +229,35 @@ def parse_ion(text: str | Ion) -> Ion:
     return Ion.parse(text)
 
 
+_REGISTERED: dict[str, Ion] = {}
+
+
+def register_ion(ion: Ion) -> Ion:
+    """Make a species outside the ion table known by its notation for this session.
+
+    Use it for complexing agents and other components the table lacks, so that salts of
+    them (``Salt.parse(..., ions=...)``) and solutions can name them. Models that need
+    ion-specific parameters will report them missing unless the :class:`Ion` carries them.
+
+    Raises
+    ------
+    InputError
+        Not an Ion, or a notation that the ion table already defines.
+
+    Examples
+    --------
+    >>> cdta = register_ion(Ion(formula="C14H18N2O8", charge=-4, molar_mass=342.30))
+    >>> resolve_ion("C14H18N2O8-4").charge
+    -4
+    """
+    if not isinstance(ion, Ion):
+        raise InputError(f"register_ion needs an ionact Ion, got {type(ion).__name__}")
+    if ion.name in ion_table():
+        raise InputError(f"{ion.name} is already in the ion table; it cannot be redefined")
+    _REGISTERED[ion.name] = ion
+    return ion
+
+
 def resolve_ion(key: str | Ion) -> Ion:
     """An :class:`Ion` for a solution key: tabulated notation, or an explicit ``Ion`` object.
 
@@ -240,11 +269,16 @@ def resolve_ion(key: str | Ion) -> Ion:
     """
     if isinstance(key, Ion):
         return key
+    if isinstance(key, str) and key.strip() in _REGISTERED:
+        return _REGISTERED[key.strip()]
     ion = Ion.parse(key)
+    if ion.name in _REGISTERED:
+        return _REGISTERED[ion.name]
     if not ion.tabulated:
         raise UnknownSpeciesError(
             f"unknown ion {key!r} (read as {ion.name}): not in the ion table; "
-            f"pass ionact.Ion(formula={ion.formula!r}, charge={ion.charge}, molar_mass=...) to use it"
+            f"pass ionact.Ion(formula={ion.formula!r}, charge={ion.charge}, molar_mass=...) or register it "
+            "with ionact.register_ion"
         )
     return ion
 
@@ -342,7 +376,7 @@ class Salt:
     @property
     def ionic_strength_factor(self) -> float:
         """Ionic strength per mole of salt: ½ Σ ν_i z_i² (1 for 1:1, 3 for 2:1, 4 for 2:2)."""
-        return 0.5 * sum(n * Ion.parse(i).charge ** 2 for i, n in self.ions)
+        return 0.5 * sum(n * resolve_ion(i).charge ** 2 for i, n in self.ions)
 
     def solubility(self, temperature: float = 25.0) -> float | None:
         """Solubility in g of anhydrous salt per 100 g water, interpolated in temperature.
@@ -431,12 +465,12 @@ def _parse_salt_cached(text: str, ions_key: tuple | None) -> Salt:
                 f"unknown salt {text!r}: not a combination of tabulated ions; "
                 "pass ions={'Na+': 1, 'X-': 1} to define it"
             )
-    charge = sum(Ion.parse(i).charge * n for i, n in comp)
+    charge = sum(resolve_ion(i).charge * n for i, n in comp)
     if charge != 0:
         raise InputError(f"salt {text!r} is not electroneutral: its ions carry net charge {charge:+d}")
-    if any(Ion.parse(i).charge == 0 for i, _ in comp):
+    if any(resolve_ion(i).charge == 0 for i, _ in comp):
         raise InputError(f"salt {text!r}: a neutral species cannot be one of a salt's ions")
-    anhydrous = sum(Ion.parse(i).molar_mass * n for i, n in comp)
+    anhydrous = sum(resolve_ion(i).molar_mass * n for i, n in comp)
     rec = _record_by_ions().get(tuple(sorted(comp))) if ions_key is None else None
     return Salt(
         formula=s,

@@ -196,3 +196,19 @@ def test_explicit_matrices_and_conductivity():
     e = design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, conductivity=(50, 1500), analyte_range=(1e-5, 1e-3),
                         tolerance_mv=1.0, solve="none", model="davies")
     assert any("russell" in n for n in e.notes)
+
+
+def test_complexing_agent_as_custom_component():
+    # a TISAB-like stock: NaCl, an acetate buffer, and a complexing agent the ion table lacks
+    cdta = ia.register_ion(ia.Ion(formula="C14H18N2O8", charge=-4, molar_mass=342.30))
+    na4 = ia.Salt.parse("Na4CDTA", ions={"Na+": 4, cdta.name: 1})
+    assert na4.molar_mass == pytest.approx(4 * 22.990 + 342.30, rel=1e-4)
+    job = dict(sample_ionic_strength=(0, 0.01), analyte_range=("0.1 mg/L", "10 mg/L"), volume_ratio=1.0,
+               tolerance_mv=0.5, solve="none", buffer=Buffer("CH3COOH", "CH3COONa", pH=5.5, total=1.0))
+    # its apparent molar volume is unknown: the density model says so rather than guess
+    with pytest.raises(ia.MissingParameterError, match="C14H18N2O8-4.*density='water'"):
+        design_adjuster("F-", {"NaCl": 1.0, na4: 0.01}, **job)
+    d = design_adjuster("F-", {"NaCl": 1.0, na4: 0.01}, density="water", **job)
+    assert "Na4CDTA" in d.recipe and d.recipe["Na4CDTA"] == pytest.approx(0.01 * na4.molar_mass)
+    assert d.model == "davies"  # nothing else has parameters for the agent
+    assert any("no solubility data" in c.message for c in d.checks if c.name == "solubility of Na4CDTA")
