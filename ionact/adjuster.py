@@ -1107,9 +1107,15 @@ def _check_solubility(checks, comps, comp_c, scale, system, t_low, margin):
             continue
         frac = m / sat
         status = "fail" if frac > 1 else ("warning" if frac > 1 - margin + 1e-9 else "ok")
+        ts = [x for x, _ in c.salt.solubility_table]
+        outside = not (ts[0] <= t_low <= ts[-1])
+        if outside and status == "ok":
+            status = "warning"
         checks.append(Check(f"solubility of {c.label}", status,
                             f"{m:.4g} mol/kg water = {frac:.1%} of saturation ({sat:.4g} mol/kg) at {t_low:g} °C "
-                            "(each salt on its own; common-ion effects not included)"))
+                            "(each salt on its own; common-ion effects not included)"
+                            + (f"; solubility is tabulated for {ts[0]:g}–{ts[-1]:g} °C only, the nearest value "
+                               "was used" if outside else "")))
 
 
 def _check_interference(checks, system, ev, an, selectivity, budget, slope, ph=None):
@@ -1255,8 +1261,11 @@ def _buffer_report(checks, system, buffer, info, ev, ratio, acidity):
             status = "ok" if max(abs(x) for x in shifts) <= 0.1 else "warning"
             checks.append(Check("pH drift", status, f"{drift[0]:+.3f} to {drift[1]:+.3f} pH over sample acidity "
                                 f"{lo:g} to {hi:g} mol/L (buffer capacity {cap:.3g} mol/(L·pH))"))
-    checks.append(Check("pH buffer", "ok", f"{ka}/{kb} pKa {info['pka']:.3f}: pH {float(ph.min()):.3f}–"
-                        f"{float(ph.max()):.3f} across treated samples and standards (target {buffer.pH:g})"))
+    far = abs(system.t - 25.0) > 5.0
+    checks.append(Check("pH buffer", "warning" if far else "ok",
+                        f"{ka}/{kb} pKa {info['pka']:.3f}: pH {float(ph.min()):.3f}–{float(ph.max()):.3f} across "
+                        f"treated samples and standards (target {buffer.pH:g})"
+                        + (f"; the pKa is a 25 °C value and the method runs at {system.t:g} °C" if far else "")))
     return dict(acid=ka, base=kb, pka=info["pka"], pH=buffer.pH, pH_range=(float(ph.min()), float(ph.max())),
                 acid_stock=ca_stock, base_stock=cb_stock, capacity=cap, drift=drift, total=info["total"])
 
@@ -1295,10 +1304,12 @@ def _check_protonation(checks, system, ev, an, ph, warns):
     log_b_over_a = ph - pka + math.log10(ga / gb)
     frac_base = 1.0 / (1.0 + 10 ** (-log_b_over_a))
     frac = frac_base if measured_is_base else 1.0 - frac_base
-    status = "ok" if frac >= 0.99 else "warning"
+    far = abs(system.t - 25.0) > 5.0
+    status = "ok" if frac >= 0.99 and not far else "warning"
     checks.append(Check(f"{an.name} in the measured form", status,
                         f"{frac:.2%} as {an.name} at pH {ph:.2f} ({acid}/{base}, pKa {pka:g}, activity-corrected)"
-                        + ("" if frac >= 0.99 else "; below 99 %: move the pH")))
+                        + ("" if frac >= 0.99 else "; below 99 %: move the pH")
+                        + (f"; the pKa is a 25 °C value and the method runs at {system.t:g} °C" if far else "")))
 
 
 def _gamma_profile(system, ev, scale, ratio):
