@@ -499,9 +499,12 @@ def check_samples(
     # the model: the design's, if it has parameters for these ions; else the best that does
     info = get_model(method.model)
     opts = Options()
+    rho_w_est = float(water._density(np.asarray(t))) / 1000.0
     model_note = ""
     if missing_for(info, tuple(ions), opts):
-        nm, why = select_model(tuple(ions), 1.0, opts)
+        finite_i = i_val[valid & np.isfinite(i_val)]
+        i_est = 0.5 * float((z**2) @ isa) * r / (1 + r) / rho_w_est + (float(finite_i.max()) if finite_i.size else 0.0)
+        nm, why = select_model(tuple(ions), i_est, opts)
         model_note = f" (design model {info.name} lacks parameters for the batch's ions; using {nm})"
         info = MODELS[nm]
     vol = np.array([i.volume if i.volume is not None else np.nan for i in ions])
