@@ -32,7 +32,7 @@ import numpy as np
 
 from . import water
 from .activity import _options, select_model
-from .errors import InfeasibleDesignError, InputError, MissingParameterError, ValidityRangeWarning
+from .errors import InfeasibleDesignError, InputError, IonactError, MissingParameterError, ValidityRangeWarning
 from .models.registry import MODELS, Batch, get_model, log10_gamma
 from .references import cite
 from .solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
@@ -1074,10 +1074,24 @@ def design_adjuster(
         profile = _gamma_profile(system, ev, scale_b, ratio_b)
     except Exception:  # the figure is an extra; never let it break a design
         profile = {}
+    if not scan:  # solve="none": show the neighbourhood of the given stock for the figure
+        grid = np.geomspace(0.01, 10.0, 41)
+        try:
+            ev_ = system.evaluate(grid, np.full_like(grid, r0))
+            wg = ev_["worst"] * slope
+            ig = np.maximum(ev_["ionic_s"].reshape(grid.size, -1).max(axis=1), ev_["ionic_std"].max(axis=1))
+            scan = {"x": grid, "worst_mv": wg, "valid": ig <= info.max_ionic_strength * (1 + 1e-12)}
+        except IonactError:  # e.g. the density model leaves its range far above the given stock
+            scan = {}
+        x_best = 1.0
     if scan:
-        scan = {"x": np.asarray(scan["x"]).tolist(), "worst_mv": np.asarray(scan["worst_mv"]).tolist(),
-                "valid": np.asarray(scan["valid"]).tolist(), "chosen": x_best,
-                "label": "volume ratio" if solve == "ratio" else "stock scale (× given amounts)"}
+        # stock scans are shown as the total strength of the scaled salts, mol/L
+        total_salt = sum(comp_c[j] for j, c in enumerate(comps) if c.role == "salt")
+        unit = 1.0 if solve == "ratio" else total_salt
+        scan = {"x": (np.asarray(scan["x"]) * unit).tolist(), "worst_mv": np.asarray(scan["worst_mv"]).tolist(),
+                "valid": np.asarray(scan["valid"]).tolist(), "chosen": x_best * unit,
+                "label": ("volume ratio (ISA per sample)" if solve == "ratio"
+                          else "stock strength, sum of the salts / mol L$^{-1}$")}
     return AdjusterDesign(
         analyte=an.name, counter_ion=counter.name, stock=stock, volume_ratio=ratio_b, recipe=recipe,
         final_ionic_strength=(imin, imax), worst_error_mv=wmv, worst_error_percent=wpct, budget_mv=budget,

@@ -175,3 +175,15 @@ def test_plot(design, tmp_path):
     path = tmp_path / "batch.png"
     r.plot(path)
     assert path.stat().st_size > 1000
+
+
+def test_progress_bar_on_stderr(design, capsys):
+    check_samples({"analyte": [1e-4] * 5, "ionic_strength": [0.01] * 5}, design, progress=True)
+    err = capsys.readouterr().err
+    assert "checking samples" in err and "5/5" in err
+
+
+def test_design_figure_for_evaluated_design(design, tmp_path):
+    assert len(design.scan["x"]) > 10 and design.scan["chosen"] == pytest.approx(2.0)
+    design.plot(tmp_path / "d.png")
+    assert (tmp_path / "d.png").stat().st_size > 1000
