@@ -32,7 +32,7 @@ def parse_terms(terms: list[str]) -> tuple[dict[str, str], dict[str, str]]:
 
 
 def solution_from_terms(terms: list[str], temperature: float = 25.0, balance: str | None = None,
-                        density=None) -> Solution:
+                        density=None, charge_tolerance: float = 1e-6) -> Solution:
     """Build a Solution from command-line terms; bare numbers are mol/kg."""
     salts, ions = parse_terms(terms)
 
@@ -43,4 +43,5 @@ def solution_from_terms(terms: list[str], temperature: float = 25.0, balance: st
             return v
 
     return Solution.from_salts({k: num(v) for k, v in salts.items()}, temperature,
-                               extra={k: num(v) for k, v in ions.items()}, balance=balance, density=density)
+                               extra={k: num(v) for k, v in ions.items()}, balance=balance, density=density,
+                               charge_tolerance=charge_tolerance)

@@ -40,7 +40,8 @@ def _emit(args, data: dict, text: str) -> None:
 def _solution(args):
     from ._composition import solution_from_terms
 
-    return solution_from_terms(args.terms, args.temperature, balance=args.balance)
+    return solution_from_terms(args.terms, args.temperature, balance=args.balance,
+                               charge_tolerance=args.charge_tolerance)
 
 
 def cmd_strength(args) -> int:
@@ -111,7 +112,8 @@ def cmd_convert(args) -> int:
     if args.terms:
         from ._composition import solution_from_terms
 
-        matrix = solution_from_terms(args.terms, args.temperature, balance=args.balance)
+        matrix = solution_from_terms(args.terms, args.temperature, balance=args.balance,
+                                     charge_tolerance=args.charge_tolerance)
     given = [x is not None for x in (args.activity, args.px, args.concentration)]
     if sum(given) != 1:
         raise IonactError("give exactly one of --activity, --px or --concentration")
@@ -219,6 +221,8 @@ def _composition_args(p, as_option=False):
         p.add_argument("terms", nargs="*", help=helptext)
     p.add_argument("-t", "--temperature", type=float, default=25.0, help="°C (default 25)")
     p.add_argument("--balance", help="ion that takes up any charge imbalance, e.g. Cl-")
+    p.add_argument("--charge-tolerance", type=float, default=1e-6,
+                   help="largest relative charge imbalance accepted without --balance (default 1e-6)")
     p.add_argument("--json", action="store_true", help="print JSON")
 
 
@@ -282,10 +286,17 @@ def build_parser() -> argparse.ArgumentParser:
     return p
 
 
+def _one_line_warnings(message, category, filename, lineno, file=None, line=None):
+    print(f"ionact: {category.__name__}: {message}", file=sys.stderr if file is None else file)
+
+
 def main(argv: list[str] | None = None) -> int:
     argv = sys.argv[1:] if argv is None else argv
     parser = build_parser()
     args = parser.parse_args(argv)
+    previous = warnings.showwarning
+    if not args.debug:
+        warnings.showwarning = _one_line_warnings
     try:
         return int(args.func(args) or 0)
     except (IonactError, OSError) as exc:
@@ -294,6 +305,8 @@ def main(argv: list[str] | None = None) -> int:
         msg = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
         print(f"ionact {args.command}: error: {msg}", file=sys.stderr)
         return EXIT_USER
+    finally:
+        warnings.showwarning = previous
 
 
 if __name__ == "__main__":  # pragma: no cover
