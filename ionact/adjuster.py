@@ -509,6 +509,10 @@ def _samples(sample_ionic_strength, samples, conductivity, tds, background, rule
         if len(flat.shape) > 1:
             raise InputError("samples must be a one-dimensional batch")
         labels = [f"matrix {i}" for i in range(flat.shape[0])]
+        ts = np.unique(np.asarray(flat._t))
+        if ts.size > 1 or abs(float(ts[0]) - t) > 1e-9:
+            notes.append(f"the explicit samples are given at {', '.join(f'{x:g}' for x in ts[:5])} °C; their "
+                         f"compositions are used as they are and γ is evaluated at the method's {t:g} °C")
         return flat, labels, notes
     if conductivity is not None or tds is not None:
         spec = conductivity if conductivity is not None else tds

@@ -174,3 +174,13 @@ def test_immutable():
     s = ia.Solution({"Na+": 0.1, "Cl-": 0.1})
     with pytest.raises(ValueError):
         s.molality_array[0] = 3.0
+
+
+def test_salt_amounts_in_mass_units_use_the_hydrate_mass():
+    # 136.08 g of CH3COONa·3H2O per litre is 1 mol/L of sodium acetate (molar mass with its water)
+    s = ia.Solution.from_salts({"CH3COONa·3H2O": "136.08 g/L"}, density="water")
+    assert s.molarities["Na+"] == pytest.approx(1.0, rel=1e-3)
+    s = ia.Solution.from_salts({"NaCl": "5.844 g/kg"})
+    assert s.molality("Cl-") == pytest.approx(0.1, rel=1e-3)
+    with pytest.raises(UnitError):
+        ia.Solution.from_salts({"NaCl": "3 m/s"})
