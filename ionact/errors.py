@@ -9,6 +9,8 @@ from __future__ import annotations
 
 import contextlib
 import contextvars
+import os
+import sys
 import warnings
 from collections.abc import Iterator
 
@@ -98,8 +100,27 @@ def strict(enabled: bool = True) -> Iterator[None]:
         _STRICT.reset(token)
 
 
-def warn_range(message: str, stacklevel: int = 3) -> None:
-    """Warn (or raise in strict mode) that something is used outside its validity range."""
+_PACKAGE_DIR = os.path.dirname(os.path.abspath(__file__))
+
+
+def caller_stacklevel() -> int:
+    """The ``stacklevel`` that points a warning at the first frame outside ionact.
+
+    Counted for a ``warnings.warn`` call made in the function that calls this one.
+    """
+    frame = sys._getframe(1)
+    level = 1
+    while frame is not None and frame.f_code.co_filename.startswith(_PACKAGE_DIR):
+        frame = frame.f_back
+        level += 1
+    return level
+
+
+def warn_range(message: str, stacklevel: int | None = None) -> None:
+    """Warn (or raise in strict mode) that something is used outside its validity range.
+
+    The warning points at the caller's own code (the first frame outside ionact).
+    """
     if _STRICT.get():
         raise ValidityRangeError(message)
-    warnings.warn(message, ValidityRangeWarning, stacklevel=stacklevel)
+    warnings.warn(message, ValidityRangeWarning, stacklevel=caller_stacklevel())

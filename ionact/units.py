@@ -15,7 +15,7 @@ from functools import lru_cache
 
 import numpy as np
 
-from .errors import InputError, UnitAssumptionWarning, UnitError
+from .errors import InputError, UnitAssumptionWarning, UnitError, caller_stacklevel
 from .species import Ion
 
 __all__ = ["registry", "Amount", "parse_amount", "convert_amount", "format_amount"]
@@ -167,7 +167,7 @@ def _parse_string(text: str, ion: Ion | None, label: str) -> Amount:
             f"amount{label} {text!r}: ppm read as mg/L (ppb as µg/L), valid only for dilute "
             "water of density ≈ 1 kg/L",
             UnitAssumptionWarning,
-            stacklevel=4,
+            stacklevel=caller_stacklevel(),
         )
     _check_values(np.asarray(num), label, text)
     ureg = registry()

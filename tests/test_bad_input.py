@@ -315,3 +315,12 @@ def test_fuzz_method_files(tmp_path, top, samples, adjuster):
             ia.design_adjuster(**load_method(p))
     except IonactError:
         pass
+
+
+def test_warnings_point_at_the_callers_code():
+    with warnings.catch_warnings(record=True) as rec:
+        warnings.simplefilter("always")
+        ia.activity_coefficients(ia.Solution.from_salts({"NaCl": 1.0}, temperature=50.0), "sit")
+        ia.concentration_from_activity("Na+", 0.5, model="davies")
+        parse_amount("35 ppm", "Cl-")
+    assert rec and all(r.filename == __file__ for r in rec), [(r.filename, str(r.message)) for r in rec]
