@@ -1,10 +1,16 @@
+import os
 import warnings
 
 import pytest
-from hypothesis import settings
+from hypothesis import HealthCheck, settings
 
-settings.register_profile("ci", max_examples=60, deadline=None)
-settings.load_profile("ci")
+# CI runs a fixed, reproducible set of examples (what passes here passes there); local runs
+# explore new examples each time.
+settings.register_profile("ci", max_examples=60, deadline=None, derandomize=True,
+                          suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
+settings.register_profile("dev", max_examples=60, deadline=None,
+                          suppress_health_check=[HealthCheck.too_slow, HealthCheck.filter_too_much])
+settings.load_profile("ci" if os.environ.get("CI") else "dev")
 
 
 @pytest.fixture
