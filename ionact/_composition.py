@@ -2,9 +2,9 @@
 
 from __future__ import annotations
 
-from .errors import InputError
+from .errors import InputError, IonactError
 from .solution import Solution
-from .species import Ion
+from .species import Ion, Salt, resolve_ion
 
 
 def parse_terms(terms: list[str]) -> tuple[dict[str, str], dict[str, str]]:
@@ -24,6 +24,14 @@ def parse_terms(terms: list[str]) -> tuple[dict[str, str], dict[str, str]]:
                 is_ion = Ion.parse(key).charge != 0 and key[-1].isdigit() and ("+" in key or "-" in key)
             except Exception:
                 is_ion = False
+        if not is_ion:  # a neutral solute such as CH3COOH is a species, not a salt
+            try:
+                Salt.parse(key)
+            except IonactError:
+                try:
+                    is_ion = resolve_ion(key).charge == 0
+                except IonactError:
+                    is_ion = False
         target = ions if is_ion else salts
         if key in target:
             raise InputError(f"composition key {key!r} is given twice")

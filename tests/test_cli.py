@@ -117,3 +117,8 @@ def test_check_command(capsys, tmp_path):
     bad.write_text("{")
     rc, _, err = run(capsys, "check", str(batch), "--design", str(bad))
     assert rc == 2 and "not valid JSON" in err
+
+
+def test_neutral_species_on_the_command_line(capsys):
+    rc, out, _ = run(capsys, "gamma", "NaCl=0.1", "CH3COOH=0.05", "--model", "davies", "--json")
+    assert rc == 0 and json.loads(out)["gamma"]["CH3COOH"] == pytest.approx(10 ** (0.1 * 0.1))
