@@ -86,7 +86,6 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
         t = np.broadcast_to(matrix._t, shape)
     else:
         names, ions, shape = [], [], tuple(shape_in)
-        base_m = np.zeros((0, *shape))
         t_arr = np.asarray(25.0 if temperature is None else temperature, dtype=float)
         shape = np.broadcast_shapes(shape, t_arr.shape)
         base_m = np.zeros((0, *shape))

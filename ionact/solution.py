@@ -15,7 +15,7 @@ solutions, ions without a tabulated volume).
 from __future__ import annotations
 
 import math
-from collections.abc import Iterable, Mapping
+from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -672,7 +672,3 @@ def ionic_strength_from_tds(tds_mg_l, rule: str = "langelier") -> IonicStrengthE
     0.01
     """
     return _estimate(tds_mg_l, _TDS_RULES, rule, "total dissolved solids", "mg/L", TDS_FRESH_LIMIT)
-
-
-def _iter_names(x: Iterable[str]) -> list[str]:
-    return [Ion.parse(n).name for n in x]
