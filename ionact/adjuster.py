@@ -205,15 +205,6 @@ class _System:
     def index(self, name: str) -> int:
         return self.names.index(name)
 
-    def add_ion(self, ion: Ion) -> int:
-        if ion.name not in self.names:
-            self.names.append(ion.name)
-            self.ions.append(ion)
-            self.cmat = np.vstack([self.cmat, np.zeros((1, self.cmat.shape[1]))])
-            self.sample_c = np.vstack([self.sample_c, np.zeros((1, self.sample_c.shape[1]))])
-            self.stoich = np.append(self.stoich, 0.0)
-        return self.names.index(ion.name)
-
     @property
     def z(self) -> np.ndarray:
         return np.array([i.charge for i in self.ions], dtype=float)
@@ -284,9 +275,8 @@ class _System:
         hi_s, lo_s = ls.reshape(G, -1).max(axis=1), ls.reshape(G, -1).min(axis=1)
         hi_t, lo_t = lstd.max(axis=1), lstd.min(axis=1)
         worst = np.maximum(hi_s - lo_t, hi_t - lo_s)
-        i_all = ionic
-        return dict(worst=worst, ls=ls, lstd=lstd, lg=lg, ionic_s=i_all[: G * J * K].reshape(G, J, K),
-                    ionic_std=i_all[G * J * K:].reshape(G, L), flat=flat)
+        return dict(worst=worst, ls=ls, lstd=lstd, lg=lg, ionic_s=ionic[: G * J * K].reshape(G, J, K),
+                    ionic_std=ionic[G * J * K:].reshape(G, L), flat=flat)
 
 
 @dataclass(frozen=True)
@@ -1075,7 +1065,7 @@ def design_adjuster(
     # γ profile across the sample range, for the figure
     profile = {}
     try:
-        profile = _gamma_profile(system, ev, scale_b, ratio_b)
+        profile = _gamma_profile(system, ev)
     except Exception:  # the figure is an extra; never let it break a design
         profile = {}
     if not scan:  # solve="none": show the neighbourhood of the given stock for the figure
@@ -1330,7 +1320,7 @@ def _check_protonation(checks, system, ev, an, ph, warns):
                         + (f"; the pKa is a 25 °C value and the method runs at {system.t:g} °C" if far else "")))
 
 
-def _gamma_profile(system, ev, scale, ratio):
+def _gamma_profile(system, ev):
     ls = ev["ls"][0]
     lstd = ev["lstd"][0]
     # without ISA: the samples alone at the lowest analyte level

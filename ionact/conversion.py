@@ -167,17 +167,14 @@ def _solve(p: _Problem, info, opts: Options, ln_a: np.ndarray):
     return x, ok
 
 
-def _max_reachable(p: _Problem, info, opts, rows) -> float:
+def _max_reachable(p: _Problem, info, opts, row: int) -> float:
+    """Largest activity the model reaches for one sample, scanning molality up to the cap."""
     i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
     grid = np.geomspace(1e-12, MAX_IONIC_STRENGTH / i_per_m, 400)
-    best = 0.0
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityRangeWarning)
-        for r in rows[:1]:
-            rr = np.full(grid.size, r)
-            lng = _ln_gamma(p, info, opts, grid, rr)
-            best = float(np.max(grid * np.exp(lng)))
-    return best
+        lng = _ln_gamma(p, info, opts, grid, np.full(grid.size, row))
+    return float(np.max(grid * np.exp(lng)))
 
 
 @dataclass(frozen=True)
@@ -311,7 +308,7 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
             x, ok = _solve(p, info, opts, ln_a)
     if not np.all(ok):
         rows = np.flatnonzero(~ok)
-        best = _max_reachable(p, info, opts, rows)
+        best = _max_reachable(p, info, opts, int(rows[0]))
         where = f" (row {int(rows[0])})" if p.shape else ""
         raise InputError(
             f"no concentration of {an.name} gives activity {float(np.exp(ln_a[rows[0]])):.6g}{where} under model "

@@ -35,7 +35,7 @@ from .species import Ion, Salt, resolve_ion
 from .units import MOLAR, parse_amount
 
 __all__ = ["Method", "SampleCheck", "check_samples", "read_samples_csv", "write_report_csv", "read_report_csv",
-           "STATUSES", "REPORT_COLUMNS"]
+           "STATUSES"]
 
 INSIDE, DILUTE, CANNOT, INVALID = "inside", "needs dilution", "cannot be brought into range", "invalid input"
 STATUSES = (INSIDE, DILUTE, CANNOT, INVALID)
@@ -135,25 +135,27 @@ class SampleCheck:
         lines += [f"  {s:<30} {c[s]}" for s in STATUSES]
         return "\n".join(lines)
 
+    def columns(self) -> list[tuple[str, object]]:
+        """The report columns in order: (header, values) with numbers as float arrays."""
+        f, u = self.unit_factor, self.unit
+        return [
+            ("sample_id", self.sample_id),
+            ("status", self.status),
+            ("dilution", np.asarray(self.dilution, dtype=float)),
+            (f"analyte [{u}]", self.analyte / f),
+            (f"treated_analyte [{u}]", self.treated_analyte / f),
+            ("ionic_strength [mol/kg]", np.asarray(self.ionic_strength, dtype=float)),
+            ("ionic_strength_source", self.ionic_strength_source),
+            ("treated_ionic_strength [mol/kg]", np.asarray(self.treated_ionic_strength, dtype=float)),
+            ("gamma_error [mV]", np.asarray(self.error_mv, dtype=float)),
+            ("gamma_error [%]", np.asarray(self.error_percent, dtype=float)),
+            ("reason", self.reason),
+        ]
+
     def rows(self) -> list[dict]:
         """One dict per sample with the report columns (numbers as floats, NaN where none)."""
-        f = self.unit_factor
-        out = []
-        for i in range(len(self)):
-            out.append({
-                "sample_id": self.sample_id[i],
-                "status": self.status[i],
-                "dilution": float(self.dilution[i]),
-                f"analyte [{self.unit}]": float(self.analyte[i] / f),
-                f"treated_analyte [{self.unit}]": float(self.treated_analyte[i] / f),
-                "ionic_strength [mol/kg]": float(self.ionic_strength[i]),
-                "ionic_strength_source": self.ionic_strength_source[i],
-                "treated_ionic_strength [mol/kg]": float(self.treated_ionic_strength[i]),
-                "gamma_error [mV]": float(self.error_mv[i]),
-                "gamma_error [%]": float(self.error_percent[i]),
-                "reason": self.reason[i],
-            })
-        return out
+        cols = [(h, v.tolist() if isinstance(v, np.ndarray) else list(v)) for h, v in self.columns()]
+        return [{h: v[i] for h, v in cols} for i in range(len(self))]
 
     def plot(self, path=None):
         """Each sample on ionic strength vs analyte level; the design's envelope and the
@@ -338,6 +340,7 @@ def check_samples(
     """
     method = Method.from_design(design)
     an = method.analyte
+    rho_w = float(water._density(np.asarray(method.temperature))) / 1000.0  # kg/L, used throughout
     dil = np.array(sorted(float(x) for x in dilutions))
     if dil.size == 0 or not np.all(np.isfinite(dil)) or np.any(dil < 1):
         raise InputError(f"dilutions {tuple(dilutions)!r} must be factors ≥ 1")
@@ -414,9 +417,8 @@ def check_samples(
             any_ion |= okm
         use = ~have & any_ion
         ionic = np.zeros(n)
-        w_rho = float(water._density(np.asarray(method.temperature))) / 1000.0
         for name, (ion, c, _) in comp.items():
-            ionic += 0.5 * ion.charge**2 * c / w_rho
+            ionic += 0.5 * ion.charge**2 * c / rho_w
             matrix_c[name] = (ion, np.where(use, c, 0.0))
         i_val[use] = ionic[use]
         have |= use
@@ -461,8 +463,7 @@ def check_samples(
     bg_ions = [(resolve_ion(i), nu) for i, nu in bg.ions]
     i_bg = np.where(valid, i_val, 0.0)
     from_ions = np.array([s == "ions" for s in sources])
-    bg_c = np.where(from_ions, 0.0, i_bg / bg.ionic_strength_factor) * (float(water._density(
-        np.asarray(method.temperature))) / 1000.0)
+    bg_c = np.where(from_ions, 0.0, i_bg / bg.ionic_strength_factor) * rho_w
 
     names: list[str] = []
     ions: list[Ion] = []
@@ -499,18 +500,16 @@ def check_samples(
     # the model: the design's, if it has parameters for these ions; else the best that does
     info = get_model(method.model)
     opts = Options()
-    rho_w_est = float(water._density(np.asarray(t))) / 1000.0
     model_note = ""
     if missing_for(info, tuple(ions), opts):
         finite_i = i_val[valid & np.isfinite(i_val)]
-        i_est = 0.5 * float((z**2) @ isa) * r / (1 + r) / rho_w_est + (float(finite_i.max()) if finite_i.size else 0.0)
+        i_est = 0.5 * float((z**2) @ isa) * r / (1 + r) / rho_w + (float(finite_i.max()) if finite_i.size else 0.0)
         nm, why = select_model(tuple(ions), i_est, opts)
         model_note = f" (design model {info.name} lacks parameters for the batch's ions; using {nm})"
         info = MODELS[nm]
     vol = np.array([i.volume if i.volume is not None else np.nan for i in ions])
     use_water = bool(np.any(np.isnan(vol)))
     vol = np.nan_to_num(vol)
-    rho_w = float(water._density(np.asarray(t))) / 1000.0
 
     def lg_of(c):
         w = np.full(c.shape[1], rho_w) if use_water else rho_w * (1 - vol @ c / 1000.0)
@@ -569,7 +568,6 @@ def check_samples(
     first = np.where(good.any(axis=1), good.argmax(axis=1), -1)
 
     status, reason, chosen = [], [], np.full(n, np.nan)
-    pick = np.where(first >= 0, first, 0)
     rows = np.arange(n)
     fu = factor
     for i in range(n):  # wording only; every number above was computed for the whole batch at once
@@ -595,7 +593,7 @@ def check_samples(
             status.append(CANNOT)
             reason.append(_cannot(i, analyte, i_val, in_cal, in_env, in_err, in_lin, cal, env_hi, err, method, fu,
                                   unit, dil))
-    idx = pick
+    idx = np.where(first >= 0, first, 0)  # the chosen dilution, or undiluted when none works
     return SampleCheck(
         sample_id=tuple(ids), status=tuple(status), reason=tuple(reason), dilution=chosen,
         ionic_strength=i_val, ionic_strength_source=tuple(s if valid[i] or s else "" for i, s in enumerate(sources)),
@@ -736,9 +734,6 @@ def _safe_cell(v) -> str:
     return s
 
 
-REPORT_COLUMNS = ("sample_id", "status", "dilution", "analyte", "treated_analyte", "ionic_strength [mol/kg]",
-                  "ionic_strength_source", "treated_ionic_strength [mol/kg]", "gamma_error [mV]", "gamma_error [%]",
-                  "reason")
 
 
 def _num_column(values: np.ndarray) -> list[str]:
@@ -759,20 +754,7 @@ def write_report_csv(result: SampleCheck, path_or_file) -> None:
     Numbers are written in their shortest exact form, so reading the file back gives the
     same floats; text that a spreadsheet would take for a formula is neutralised.
     """
-    f, u = result.unit_factor, result.unit
-    columns = [
-        ("sample_id", _text_column(result.sample_id)),
-        ("status", _text_column(result.status)),
-        ("dilution", _num_column(result.dilution)),
-        (f"analyte [{u}]", _num_column(result.analyte / f)),
-        (f"treated_analyte [{u}]", _num_column(result.treated_analyte / f)),
-        ("ionic_strength [mol/kg]", _num_column(result.ionic_strength)),
-        ("ionic_strength_source", _text_column(result.ionic_strength_source)),
-        ("treated_ionic_strength [mol/kg]", _num_column(result.treated_ionic_strength)),
-        ("gamma_error [mV]", _num_column(result.error_mv)),
-        ("gamma_error [%]", _num_column(result.error_percent)),
-        ("reason", _text_column(result.reason)),
-    ]
+    columns = [(h, _num_column(v) if isinstance(v, np.ndarray) else _text_column(v)) for h, v in result.columns()]
     own = isinstance(path_or_file, str | bytes) or hasattr(path_or_file, "__fspath__")
     fh = open(path_or_file, "w", encoding="utf-8", newline="") if own else path_or_file
     try:
