@@ -87,7 +87,7 @@ def test_standard_for_activity():
     r = standard_for_activity("CaCl2", "Ca+2", 1e-3, model="davies")
     g = ia.models.davies(2, 3 * r.salt_molality)
     assert r.salt_molality * g == pytest.approx(1e-3, rel=1e-9)
-    assert r.grams_per_kg_water == pytest.approx(r.salt_molality * 110.98, rel=1e-3)
+    assert r.grams_per_kg_water == pytest.approx(r.salt_molality * 110.98, rel=1e-3)  # M(CaCl2), common practice
     with pytest.raises(InputError, match="not one of"):
         standard_for_activity("NaCl", "F-", 1e-3)
 
