@@ -82,8 +82,8 @@ def bench_davies(n=1_000_000) -> None:
     RESULTS["models.davies, 1e6 ions"]["floor_vs_plain"] = t_plain / t_floor
 
 
-BASE = {"Na+": 0.486, "K+": 0.0106, "Mg+2": 0.0547, "Ca+2": 0.0107,
-        "Cl-": 0.566, "SO4-2": 0.0293, "HCO3-": 0.0018, "Br-": 0.00087}
+BASE = {"Na+": 0.486, "K+": 0.0106, "Mg^2+": 0.0547, "Ca^2+": 0.0107,
+        "Cl-": 0.566, "SO4^2-": 0.0293, "HCO3-": 0.0018, "Br-": 0.00087}
 
 
 def seawater_batch(n: int) -> ia.Solution:

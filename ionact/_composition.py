@@ -1,4 +1,4 @@
-"""Read compositions written on a command line or in a file: "NaCl=0.1", "Ca+2=2 mmol/kg"."""
+"""Read compositions written on a command line or in a file: "NaCl=0.1", "Ca^2+=2 mmol/kg"."""
 
 from __future__ import annotations
 
@@ -13,7 +13,7 @@ def parse_terms(terms: list[str]) -> tuple[dict[str, str], dict[str, str]]:
     ions: dict[str, str] = {}
     for term in terms:
         if "=" not in term:
-            raise InputError(f"composition term {term!r} is not KEY=AMOUNT (e.g. NaCl=0.1 or 'Ca+2=2 mmol/kg')")
+            raise InputError(f"composition term {term!r} is not KEY=AMOUNT (e.g. NaCl=0.1 or 'Ca^2+=2 mmol/kg')")
         key, _, amount = term.partition("=")
         key, amount = key.strip(), amount.strip()
         if not key or not amount:

@@ -585,7 +585,7 @@ def design_adjuster(
     Parameters
     ----------
     analyte : str
-        The measured ion, e.g. "NO3-", "F-", "Ca+2".
+        The measured ion, e.g. "NO3-", "F-", "Ca^2+".
     salts : mapping
         Stock components -> mol/L: salt formulas (hydrates as they will be weighed, e.g.
         "CH3COONa·3H2O"), :class:`~ionact.Salt` objects for custom salts, or neutral species
@@ -627,7 +627,7 @@ def design_adjuster(
         Ion -> selectivity coefficient K of this electrode for interferent ions (the caller's
         own values); the ISA's ions are checked through Nikolsky–Eisenman.
     matrix_ions : mapping, optional
-        Highest levels of matrix ions (e.g. {"Ca+2": "200 mg/L"}) for the precipitation check.
+        Highest levels of matrix ions (e.g. {"Ca^2+": "200 mg/L"}) for the precipitation check.
     buffer : Buffer, optional
         A pH buffer pair in the stock; amounts are solved for the target pH at the final
         ionic strength (activity-corrected).

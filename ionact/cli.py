@@ -213,7 +213,7 @@ def cmd_demo(args) -> int:
 
 
 def _composition_args(p, as_option=False):
-    helptext = "KEY=AMOUNT terms: NaCl=0.1, 'Ca+2=2 mmol/kg', 'NO3-=10 mg/L as N'"
+    helptext = "KEY=AMOUNT terms: NaCl=0.1, 'Ca^2+=2 mmol/kg', 'NO3-=10 mg/L as N'"
     if as_option:
         p.add_argument("--matrix", dest="terms", nargs="+", default=[], metavar="KEY=AMOUNT",
                        help="the background without the analyte; " + helptext)
@@ -249,7 +249,7 @@ def build_parser() -> argparse.ArgumentParser:
     g.set_defaults(func=cmd_gamma)
 
     c = sub.add_parser("convert", help="activity <-> concentration of an analyte in a matrix")
-    c.add_argument("ion", help="the analyte, e.g. F- or Ca+2")
+    c.add_argument("ion", help="the analyte, e.g. F- or Ca^2+")
     _composition_args(c, as_option=True)
     c.add_argument("--activity", type=float, help="molal-scale activity to convert to a concentration")
     c.add_argument("--px", type=float, help="pX = -log10 a to convert to a concentration")

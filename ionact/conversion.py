@@ -250,7 +250,7 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
     Parameters
     ----------
     ion : str or Ion
-        The analyte, e.g. "F-", "NO3-", "Ca+2".
+        The analyte, e.g. "F-", "NO3-", "Ca^2+".
     activity : float or array_like
         Molal-scale activity (> 0); arrays give a batch (broadcast against a batch matrix).
     matrix : Solution, optional

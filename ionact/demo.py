@@ -17,7 +17,7 @@ from .errors import InfeasibleDesignError, ValidityRangeWarning
 from .solution import Solution
 
 # A survey of irrigation water around the (invented) Harrowfield polder, mg/L.
-SURVEY_IONS = ("Ca+2", "Mg+2", "Na+", "K+", "HCO3-", "SO4-2", "Cl-", "NO3-")
+SURVEY_IONS = ("Ca^2+", "Mg^2+", "Na+", "K+", "HCO3-", "SO4^2-", "Cl-", "NO3-")
 SURVEY = {
     "HF-01 canal inlet": (40, 12, 25, 3, 150, 40, 24, 8),
     "HF-02 north well": (95, 30, 80, 5, 280, 160, 86, 25),
@@ -26,7 +26,7 @@ SURVEY = {
     "HF-05 saline well": (300, 110, 900, 20, 400, 1200, 1110, 40),
 }
 # Invented selectivity coefficients of the demo's nitrate electrode (log K ≈ −2.4 and −6).
-DEMO_SELECTIVITY = {"Cl-": 4e-3, "SO4-2": 1e-6}
+DEMO_SELECTIVITY = {"Cl-": 4e-3, "SO4^2-": 1e-6}
 
 
 def survey_solution(without: tuple[str, ...] = ()) -> tuple[list[str], Solution, list[float]]:
@@ -51,11 +51,11 @@ def run(out=None) -> None:
     w("ionact demo — a nitrate electrode method for the Harrowfield polder irrigation survey\n")
     w("(invented scenario and data; compositions in mg/L, charge-balanced on Cl- as shown)\n\n")
     w(f"1. The samples, 20 °C — activity model {g.model}: {g.reason}\n\n")
-    head = f"{'sample':<22}{'I mol/kg':>10}{'Cl- adjust':>12}{'γ NO3-':>9}{'γ Ca+2':>9}"
+    head = f"{'sample':<22}{'I mol/kg':>10}{'Cl- adjust':>12}{'γ NO3-':>9}{'γ Ca^2+':>9}"
     w(head + "\n" + "-" * len(head) + "\n")
     for k, name in enumerate(names):
         w(f"{name:<22}{batch.ionic_strength[k]:>10.4f}{added[k] * 1e3:>9.3f} mM"
-          f"{g['NO3-'][k]:>9.4f}{g['Ca+2'][k]:>9.4f}\n")
+          f"{g['NO3-'][k]:>9.4f}{g['Ca^2+'][k]:>9.4f}\n")
     spread = g["NO3-"].max() / g["NO3-"].min()
     w(f"\nWithout an adjuster γ(NO3-) varies by {100 * (spread - 1):.1f} % across the survey, "
       f"{59.16 * np.log10(spread):.2f} mV at the electrode.\n\n")
@@ -65,7 +65,7 @@ def run(out=None) -> None:
     job = dict(analyte="NO3-", samples=matrices, analyte_range=("0.5 mg/L as N", "30 mg/L as N"),
                standard_salt="KNO3", tolerance_mv=0.5, lowest_temperature=12.0,
                linear_range=("0.1 mg/L as N", "1400 mg/L as N"), selectivity=DEMO_SELECTIVITY,
-               matrix_ions={"Ca+2": "300 mg/L"}, name="Harrowfield irrigation survey",
+               matrix_ions={"Ca^2+": "300 mg/L"}, name="Harrowfield irrigation survey",
                sample_labels=names)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityRangeWarning)

@@ -311,7 +311,7 @@ class Solution:
 
         Examples
         --------
-        >>> Solution.from_ionic_strength(0.03, "CaCl2").molalities["Ca+2"]
+        >>> Solution.from_ionic_strength(0.03, "CaCl2").molalities["Ca^2+"]
         0.01
         """
         s = Salt.parse(salt)

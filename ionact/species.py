@@ -1,7 +1,7 @@
 """Ions and salts: parsing the notations chemists write, charges, molar masses.
 
 Ion notation is ambiguous in one common style: in ``"Ca2+"`` the digit is the charge,
-in ``"NO3-"`` it is a subscript. The unambiguous forms (``"Ca+2"``, ``"SO4-2"``,
+in ``"NO3-"`` it is a subscript. The unambiguous forms (``"Ca^2+"``, ``"SO4^2-"``, ``"Ca+2"``,
 ``"SO4^2-"``, ``"Ca++"``) are read directly; "digit then one sign" is resolved through
 the ion table, and what stays ambiguous is refused with a message rather than guessed.
 """
@@ -16,7 +16,7 @@ from functools import lru_cache
 from .errors import InputError, UnknownSpeciesError
 from .tables import IonRecord, SaltRecord, canonical_name, ion_table, salt_table
 
-__all__ = ["Ion", "Salt", "parse_ion", "parse_salt", "resolve_ion", "register_ion"]
+__all__ = ["Ion", "Salt", "parse_ion", "parse_salt", "resolve_ion", "register_ion", "typeset"]
 
 _SUPER = str.maketrans("⁰¹²³⁴⁵⁶⁷⁸⁹⁺⁻−–", "0123456789+--" + "-")
 _RE_CARET = re.compile(r"^(?P<f>.+?)\^\{?(?:(?P<n1>\d*)(?P<s1>[+-])|(?P<s2>[+-])(?P<n2>\d*))\}?$")
@@ -88,7 +88,7 @@ def _candidates(text: str) -> list[tuple[str, int]]:
             out.insert(0, (base, z * digit))
         return out
     if "+" in text or "-" in text:
-        raise InputError(f"cannot read the charge in {text!r}; write it as e.g. 'Ca+2' or 'SO4-2'")
+        raise InputError(f"cannot read the charge in {text!r}; write it as e.g. 'Ca^2+' or 'SO4^2-'")
     return [(text, 0)]
 
 
@@ -116,7 +116,7 @@ class Ion:
     Examples
     --------
     >>> Ion.parse("SO4^2-").name
-    'SO4-2'
+    'SO4^2-'
     >>> Ion.parse("Ca2+").charge, Ion.parse("NO3-").charge
     (2, -1)
     >>> round(Ion.parse("NH4+").molar_mass, 3)
@@ -142,11 +142,16 @@ class Ion:
 
     @property
     def name(self) -> str:
-        """Canonical notation: ``"Ca+2"``, ``"Na+"``, ``"SO4-2"``, ``"NH3"``."""
+        """Canonical notation: ``"Ca^2+"``, ``"Na+"``, ``"SO4^2-"``, ``"NH3"``."""
         return canonical_name(self.formula, self.charge)
 
     def __str__(self) -> str:
         return self.name
+
+    @property
+    def pretty(self) -> str:
+        """The name with typographic sub- and superscripts, for reports and figures: ``"SO₄²⁻"``."""
+        return typeset(self.name)
 
     @staticmethod
     def parse(text: str | Ion) -> Ion:
@@ -155,7 +160,7 @@ class Ion:
         Parameters
         ----------
         text : str
-            ``"Ca+2"``, ``"Ca2+"``, ``"Ca++"``, ``"Ca^2+"``, ``"SO4-2"``, ``"SO4^2-"``,
+            ``"Ca^2+"``, ``"Ca2+"``, ``"Ca++"``, ``"Ca+2"``, ``"Ca²⁺"``, ``"SO4^2-"``, ``"SO4-2"``,
             ``"SO4--"``, ``"H2PO4-"``, ``"CH3COO-"``, ``"NH4+"``, a neutral ``"CH3COOH"``,
             or a tabulated alias (``"OAc-"``).
 
@@ -191,7 +196,7 @@ def _parse_ion_cached(text: str) -> Ion:
             f, z, rec = known[0]
         elif len(known) > 1:
             opts = " or ".join(repr(canonical_name(f, z)) for f, z in cands)
-            raise InputError(f"ion notation {text!r} is ambiguous: {opts}; write the charge as e.g. 'X+2'")
+            raise InputError(f"ion notation {text!r} is ambiguous: {opts}; write the charge as e.g. 'X^2+'")
         else:
             f, z = cands[0]
             if re.fullmatch(r"[A-Z][a-z]?", f):  # monatomic: "Ce3+" means Ce, charge 3
@@ -200,7 +205,7 @@ def _parse_ion_cached(text: str) -> Ion:
                 opts = " or ".join(repr(canonical_name(f2, z2)) for f2, z2 in cands)
                 raise InputError(
                     f"ion notation {text!r} is ambiguous ({opts}) and neither is tabulated; "
-                    "write the charge after a sign, e.g. 'X-2' or 'X^2-'"
+                    "write the charge after a sign, e.g. 'X^2-' or 'X-2'"
                 )
     else:
         f, z = cands[0]
@@ -222,6 +227,29 @@ def _parse_ion_cached(text: str) -> Ion:
         volume=rec.volume,
         tabulated=True,
     )
+
+
+_SUB = str.maketrans("0123456789", "₀₁₂₃₄₅₆₇₈₉")
+_SUP = str.maketrans("0123456789+-", "⁰¹²³⁴⁵⁶⁷⁸⁹⁺⁻")
+_RE_CANONICAL = re.compile(r"^(?P<f>.*?)(?:\^(?P<n>\d+))?(?P<s>[+-])$")
+
+
+def typeset(name: str) -> str:
+    """Typographic form of a canonical species name: ``"SO4^2-"`` → ``"SO₄²⁻"``, ``"Na+"`` → ``"Na⁺"``.
+
+    Digits in the formula become subscripts (a leading stoichiometric count in brackets
+    stays as written); the charge becomes a superscript. Neutral names only get subscripts.
+
+    Examples
+    --------
+    >>> typeset("SO4^2-"), typeset("NH4+"), typeset("CaSO4(aq)")
+    ('SO₄²⁻', 'NH₄⁺', 'CaSO₄(aq)')
+    """
+    m = _RE_CANONICAL.match(name)
+    if m is None or not m["f"]:
+        return name.translate(_SUB)
+    charge = (m["n"] or "") + m["s"]
+    return m["f"].translate(_SUB) + charge.translate(_SUP)
 
 
 def parse_ion(text: str | Ion) -> Ion:
@@ -247,7 +275,7 @@ def register_ion(ion: Ion) -> Ion:
     Examples
     --------
     >>> cdta = register_ion(Ion(formula="C14H18N2O8", charge=-4, molar_mass=342.30))
-    >>> resolve_ion("C14H18N2O8-4").charge
+    >>> resolve_ion("C14H18N2O8^4-").charge
     -4
     """
     if not isinstance(ion, Ion):
@@ -414,7 +442,7 @@ class Salt:
             ``"NaCl"``, ``"(NH4)2SO4"``, ``"CH3COONa·3H2O"`` (also ``"."`` or ``"*"`` before
             the water), or any name when ``ions`` is given.
         ions : dict, optional
-            Ion notation -> count per formula unit, e.g. ``{"Na+": 3, "C6H5O7-3": 1}``.
+            Ion notation -> count per formula unit, e.g. ``{"Na+": 3, "C6H5O7^3-": 1}``.
 
         Raises
         ------

@@ -27,11 +27,16 @@ __all__ = [
 
 
 def canonical_name(formula: str, charge: int) -> str:
-    """Canonical text of an ion: ``Ca+2``, ``Na+``, ``SO4-2``, ``Cl-``, neutral ``NH3``."""
+    """Canonical text of an ion in the IUPAC order: ``Na+``, ``Cl-``, ``Ca^2+``, ``SO4^2-``, neutral ``NH3``.
+
+    The number comes before the sign, and a caret separates a charge above one from the
+    formula (so that ``SO4^2-`` cannot be read as a subscript).
+    """
     if charge == 0:
         return formula
     sign = "+" if charge > 0 else "-"
-    return f"{formula}{sign}{abs(charge) if abs(charge) > 1 else ''}"
+    n = abs(charge)
+    return f"{formula}{sign}" if n == 1 else f"{formula}^{n}{sign}"
 
 
 def _rows(name: str) -> list[dict[str, str]]:
@@ -98,7 +103,7 @@ def _src(text: str) -> tuple[str, ...]:
 
 @lru_cache(maxsize=1)
 def ion_table() -> dict[str, IonRecord]:
-    """All tabulated ions keyed by canonical name (``"Ca+2"``)."""
+    """All tabulated ions keyed by canonical name (``"Ca^2+"``)."""
     out: dict[str, IonRecord] = {}
     for r in _rows("ions.csv"):
         rec = IonRecord(

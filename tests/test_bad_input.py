@@ -99,7 +99,7 @@ API_CASES = [
     ("truesdell-jones-missing", lambda: ia.activity_coefficients(ia.Solution.from_salts({"KNO3": 0.1}),
                                                                  "truesdell-jones"), MissingParameterError, "NO3-"),
     ("density-missing-volume", lambda: ia.Solution.from_salts({"CuCl2": "0.1 mol/L"}), MissingParameterError,
-     "Cu+2"),
+     "Cu^2+"),
     # infeasible designs and saturation
     ("design-infeasible", lambda: _design(sample_ionic_strength=(0, 0.5), tolerance_mv=0.001, solve="stock"),
      InfeasibleDesignError, "0.001"),

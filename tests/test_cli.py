@@ -24,7 +24,7 @@ def test_gamma_json_for_models(capsys, model):
 
 def test_gamma_text_and_compare(capsys):
     rc, out, _ = run(capsys, "gamma", "CaCl2=2 mmol/kg", "NaCl=0.01", "--model", "davies")
-    assert rc == 0 and "Ca+2" in out and "γ =" in out
+    assert rc == 0 and "Ca^2+" in out and "γ =" in out
     rc, out, _ = run(capsys, "gamma", "NaCl=0.05", "--compare")
     assert rc == 0 and "spread mV" in out
 

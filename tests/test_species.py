@@ -9,25 +9,26 @@ from ionact.errors import InputError, IonactError, UnknownSpeciesError
 from ionact.tables import ion_table
 
 NOTATIONS = [
-    ("Ca+2", "Ca+2", 2),
-    ("Ca2+", "Ca+2", 2),
-    ("Ca++", "Ca+2", 2),
-    ("Ca^2+", "Ca+2", 2),
-    ("Ca²⁺", "Ca+2", 2),
-    ("SO4-2", "SO4-2", -2),
-    ("SO4^2-", "SO4-2", -2),
-    ("SO4--", "SO4-2", -2),
-    ("SO42-", "SO4-2", -2),
+    ("Ca+2", "Ca^2+", 2),
+    ("Ca2+", "Ca^2+", 2),
+    ("Ca++", "Ca^2+", 2),
+    ("Ca^2+", "Ca^2+", 2),
+    ("Ca²⁺", "Ca^2+", 2),
+    ("SO4-2", "SO4^2-", -2),
+    ("SO4^2-", "SO4^2-", -2),
+    ("SO4--", "SO4^2-", -2),
+    ("SO42-", "SO4^2-", -2),
     ("H2PO4-", "H2PO4-", -1),
-    ("HPO42-", "HPO4-2", -2),
-    ("PO43-", "PO4-3", -3),
+    ("HPO42-", "HPO4^2-", -2),
+    ("PO43-", "PO4^3-", -3),
     ("CH3COO-", "CH3COO-", -1),
     ("OAc-", "CH3COO-", -1),
     ("NH4+", "NH4+", 1),
     ("NO3-", "NO3-", -1),
-    ("Fe3+", "Fe+3", 3),
-    ("Fe2+", "Fe+2", 2),
-    ("Al+3", "Al+3", 3),
+    ("Fe3+", "Fe^3+", 3),
+    ("Fe2+", "Fe^2+", 2),
+    ("Al+3", "Al^3+", 3),
+    ("Ca^{2+}", "Ca^2+", 2),
     ("CH3COOH", "CH3COOH", 0),
     ("NH3", "NH3", 0),
     (" Na+ ", "Na+", 1),
@@ -73,13 +74,13 @@ def test_hydrate_water_counts_in_mass_not_ions():
     "formula,ions",
     [
         ("NaCl", {"Na+": 1, "Cl-": 1}),
-        ("CaCl2", {"Ca+2": 1, "Cl-": 2}),
-        ("(NH4)2SO4", {"NH4+": 2, "SO4-2": 1}),
-        ("Ca(NO3)2", {"Ca+2": 1, "NO3-": 2}),
-        ("Al2(SO4)3", {"Al+3": 2, "SO4-2": 3}),
+        ("CaCl2", {"Ca^2+": 1, "Cl-": 2}),
+        ("(NH4)2SO4", {"NH4+": 2, "SO4^2-": 1}),
+        ("Ca(NO3)2", {"Ca^2+": 1, "NO3-": 2}),
+        ("Al2(SO4)3", {"Al^3+": 2, "SO4^2-": 3}),
         ("CH3COOK", {"K+": 1, "CH3COO-": 1}),
-        ("LaCl3", {"La+3": 1, "Cl-": 3}),
-        ("MgSO4", {"Mg+2": 1, "SO4-2": 1}),
+        ("LaCl3", {"La^3+": 1, "Cl-": 3}),
+        ("MgSO4", {"Mg^2+": 1, "SO4^2-": 1}),
     ],
 )
 def test_salts_dissociate(formula, ions):
@@ -87,7 +88,7 @@ def test_salts_dissociate(formula, ions):
 
 
 def test_explicit_ion_mapping():
-    s = ia.Salt.parse("trisodium citrate", ions={"Na+": 3, "C6H5O7-3": 1})
+    s = ia.Salt.parse("trisodium citrate", ions={"Na+": 3, "C6H5O7^3-": 1})
     assert s.ionic_strength_factor == pytest.approx(6.0)
     with pytest.raises(InputError, match="net charge"):
         ia.Salt.parse("bad", ions={"Na+": 2, "Cl-": 1})

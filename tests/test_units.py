@@ -18,12 +18,12 @@ from ionact.units import convert_amount, parse_amount
         ("250 umol/L", None, 2.5e-4, "molar"),
         ("35.45 mg/L", "Cl-", 1e-3, "molar"),
         ("19 µg/L", "F-", 1e-6, "molar"),
-        ("2 meq/L", "Ca+2", 1e-3, "molar"),
+        ("2 meq/L", "Ca^2+", 1e-3, "molar"),
         # DOMAIN §2 (common practice): 1 mg/L NO3-N is 1/14.007 mmol/L of nitrate
         ("14.007 mg/L as N", "NO3-", 1e-3, "molar"),
         ("14.007 mg/L as N", "NH4+", 1e-3, "molar"),
         # 50.04 g CaCO3 per equivalent (common practice): 100.08 mg/L as CaCO3 = 1 mmol/L Ca
-        ("100.08 mg/L as CaCO3", "Ca+2", 1e-3, "molar"),
+        ("100.08 mg/L as CaCO3", "Ca^2+", 1e-3, "molar"),
     ],
 )
 def test_parse_amounts(text, ion, value, basis):
@@ -54,7 +54,7 @@ def test_pint_quantity_accepted():
 
 def test_convert_back():
     assert convert_amount(1e-3, "molar", "mg/L", "Cl-") == pytest.approx(35.45, rel=1e-3)
-    assert convert_amount(1e-3, "molar", "meq/L", "Ca+2") == pytest.approx(2.0)
+    assert convert_amount(1e-3, "molar", "meq/L", "Ca^2+") == pytest.approx(2.0)
     assert convert_amount(0.01, "molal", "mol/L", "Na+", water_per_litre=0.99) == pytest.approx(0.0099)
     with pytest.raises(UnitError, match="density"):
         convert_amount(0.01, "molal", "mol/L", "Na+")

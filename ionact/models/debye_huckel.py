@@ -154,7 +154,7 @@ def extended_debye_huckel(charge, ionic_strength, size, temperature=25.0):
 
     Examples
     --------
-    >>> round(extended_debye_huckel(2, 0.01, 6.0), 3)  # Ca+2; Kielland's table gives 0.675
+    >>> round(extended_debye_huckel(2, 0.01, 6.0), 3)  # Ca^2+; Kielland's table gives 0.675
     0.675
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "extended")
