@@ -21,14 +21,14 @@ demo: $(VENV)/.base
 	$(PY) -m ionact demo
 
 test: $(VENV)/.test
-	$(PY) -m ruff check ionact tests benchmarks
+	$(PY) -m ruff check ionact tests benchmarks tools
 	$(PY) -m pytest -q
 
 bench: $(VENV)/.test
 	$(PY) benchmarks/run.py
 
 lint: $(VENV)/.test
-	$(PY) -m ruff check ionact tests benchmarks
+	$(PY) -m ruff check ionact tests benchmarks tools
 
 clean:
 	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json

@@ -175,8 +175,8 @@ def bench_design(n=1000) -> None:
     mats = ia.Solution.from_salts({"NaCl": k, "CaCl2": k / 10, "MgSO4": k / 20})
 
     def run():
-        ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, samples=mats, analyte_range=(1e-5, 1e-3), tolerance_mv=1.0,
-                           solve="stock")
+        ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, samples=mats, analyte_range=(1e-5, 1e-3),
+                           budget=ia.Budget(mv=1.0), solve="stock")
 
     t = median_time(run, repeat=3)
     report("design_adjuster solve=stock, 1000 matrices", n, t, target="< 0.5 s", met=t < 0.5)

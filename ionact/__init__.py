@@ -15,7 +15,18 @@ from .activity import (
     osmotic_coefficient,
     water_activity,
 )
-from .adjuster import AdjusterDesign, Buffer, compare_adjusters, design_adjuster
+from .adjuster import (
+    AdjusterComparison,
+    AdjusterDesign,
+    Budget,
+    Buffer,
+    Check,
+    Electrode,
+    SamplePopulation,
+    StockComponent,
+    compare_adjusters,
+    design_adjuster,
+)
 from .conversion import (
     activity_from_concentration,
     activity_from_px,
@@ -70,7 +81,13 @@ __all__ = [
     "design_adjuster",
     "compare_adjusters",
     "AdjusterDesign",
+    "AdjusterComparison",
+    "Budget",
     "Buffer",
+    "Check",
+    "Electrode",
+    "SamplePopulation",
+    "StockComponent",
     "check_samples",
     "SampleCheck",
     "IonactError",

@@ -7,7 +7,6 @@ and why ``model="auto"`` chose what it chose.
 
 from __future__ import annotations
 
-import math
 import warnings
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
@@ -15,9 +14,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import water
-from .errors import InputError, MissingParameterError, ValidityRangeWarning, is_strict, warn_range
+from .constants import LN10
+from .errors import InputError, MissingParameterError, ValidityRangeWarning, strict, warn_range
 from .models import pitzer as pz
-from .models.registry import MODELS, Batch, ModelInfo, Options, get_model, log10_gamma, missing_for
+from .models.registry import MODELS, Batch, ModelInfo, get_model
+from .models.resolver import ModelChoice, choice_for, evaluate, resolve_model
 from .solution import Solution
 from .species import Ion, Salt
 
@@ -30,60 +31,17 @@ __all__ = [
     "compare_models",
     "osmotic_coefficient",
     "water_activity",
-    "select_model",
+    "batch_of",
 ]
 
 
-def _options(sizes=None, davies_coefficient=0.3, bdot=0.041, setschenow=None, missing="error",
-             unsymmetrical=True) -> Options:
-    if missing not in ("error", "zero"):
-        raise InputError(f"missing={missing!r}: allowed 'error', 'zero', or a fallback model name")
-    if not (isinstance(davies_coefficient, int | float) and 0 <= davies_coefficient <= 1):
-        raise InputError(f"davies_coefficient {davies_coefficient!r} is outside 0–1")
-    sz = {Ion.parse(k).name: float(v) for k, v in (sizes or {}).items()}
-    for k, v in sz.items():
-        if not (0 < v < 20):
-            raise InputError(f"size of {k} {v!r} Å is outside (0, 20) Å")
-    if isinstance(setschenow, int | float):
-        ks, kd = {}, float(setschenow)
-    else:
-        ks, kd = {Ion.parse(k).name: float(v) for k, v in (setschenow or {}).items()}, 0.1
-    return Options(sizes=sz, davies_coefficient=float(davies_coefficient), bdot=float(bdot),
-                   setschenow=ks, setschenow_default=kd, missing=missing, unsymmetrical=bool(unsymmetrical))
-
-
-def _batch(sol: Solution) -> Batch:
+def batch_of(sol: Solution) -> Batch:
+    """The plain arrays of a solution (n ions × N samples) for the model kernels."""
     n = len(sol.ions)
     size = sol.size
     m = np.asarray(sol.molality_array).reshape(n, size)
-    t = np.asarray(sol._t).reshape(size)
-    ionic = np.asarray(sol._ionic_strength).reshape(size)
-    return Batch(sol.ions, tuple(sol.ion(x) for x in sol.ions), sol.charges, m, t, ionic)
-
-
-def select_model(ions: tuple[Ion, ...], max_ionic_strength: float, options: Options | None = None) -> tuple[str, str]:
-    """The most accurate registered model whose parameters and range cover these ions.
-
-    Returns
-    -------
-    (name, reason)
-    """
-    options = options or Options()
-    ranked = sorted((m for m in MODELS.values() if m.in_auto), key=lambda m: -m.rank)
-    covered = [m for m in ranked if not missing_for(m, ions, options)]
-    for m in covered:
-        if max_ionic_strength <= m.max_ionic_strength:
-            lacking = [x.name for x in ranked if x.rank > m.rank and x not in covered]
-            why = (f"{m.name}: parameters cover every ion and I = {max_ionic_strength:.3g} ≤ "
-                   f"{m.max_ionic_strength:g} mol/kg")
-            if lacking:
-                why += f" (more accurate {', '.join(lacking)} lack parameters)"
-            return m.name, why
-    widest = max(covered, key=lambda m: m.max_ionic_strength)
-    return widest.name, (
-        f"{widest.name}: no model with parameters covers I = {max_ionic_strength:.3g} mol/kg; "
-        f"the widest range available is {widest.max_ionic_strength:g} mol/kg"
-    )
+    t = np.asarray(sol.temperature, dtype=float).reshape(size)
+    return Batch.of(tuple(sol.ion(x) for x in sol.ions), m, t)
 
 
 class ActivityCoefficients(Mapping):
@@ -104,16 +62,19 @@ class ActivityCoefficients(Mapping):
         Whether every sample is inside the model's ionic-strength range.
     """
 
-    def __init__(self, gammas, model: ModelInfo, reason, notes, ionic_strength, in_range):
+    def __init__(self, gammas, choice: ModelChoice, notes, ionic_strength, violations):
+        info: ModelInfo = choice.info
         self._g = gammas
-        self.model = model.name
-        self.title = model.title
-        self.convention = model.convention
-        self.max_ionic_strength = model.max_ionic_strength
-        self.reason = reason
+        self.choice = choice
+        self.model = info.name
+        self.title = info.title
+        self.convention = info.convention
+        self.max_ionic_strength = info.max_ionic_strength
+        self.reason = choice.reason
         self.notes = tuple(notes)
         self.ionic_strength = ionic_strength
-        self.in_range = in_range
+        self.violations = tuple(str(v) for v in violations)
+        self.in_range = not any(v.kind == "ionic-strength" for v in violations)
 
     def __getitem__(self, key):
         if key in self._g:
@@ -143,8 +104,9 @@ class ActivityCoefficients(Mapping):
             return float(v) if np.ndim(v) == 0 else np.asarray(v).tolist()
 
         return {"model": self.model, "convention": self.convention, "reason": self.reason,
-                "notes": list(self.notes), "ionic_strength": conv(self.ionic_strength),
-                "in_range": self.in_range, "gamma": {k: conv(v) for k, v in self._g.items()}}
+                "choice": self.choice.to_dict(), "notes": list(self.notes),
+                "ionic_strength": conv(self.ionic_strength), "in_range": self.in_range,
+                "violations": list(self.violations), "gamma": {k: conv(v) for k, v in self._g.items()}}
 
 
 def activity_coefficients(
@@ -212,42 +174,20 @@ def activity_coefficients(
     """
     if not isinstance(solution, Solution):
         raise InputError(f"activity_coefficients needs a Solution, got {type(solution).__name__}")
-    fallback = None
-    if missing not in ("error", "zero"):
-        fallback = get_model(missing)
-        missing = "error"
-    opts = _options(sizes, davies_coefficient, bdot, setschenow, missing, unsymmetrical)
-    batch = _batch(solution)
-    finite = batch.ionic[np.isfinite(batch.ionic)]
-    imax = float(finite.max()) if finite.size else 0.0
-    notes: list[str] = []
-    if model == "auto":
-        name, reason = select_model(batch.ions, imax, opts)
-        info = MODELS[name]
-    else:
-        info = get_model(model)
-        reason = "requested"
-        if fallback is not None:
-            lacking = missing_for(info, batch.ions, opts)
-            if lacking:
-                notes.append(f"{info.name} lacks parameters ({'; '.join(lacking)}); fell back to {fallback.name}")
-                reason = f"requested {info.name}; fell back to {fallback.name}"
-                info = fallback
-    in_range = imax <= info.max_ionic_strength
-    if not in_range:
-        warn_range(
-            f"model {info.name}: ionic strength {imax:.4g} mol/kg is above its range "
-            f"0–{info.max_ionic_strength:g} mol/kg" + (f" (auto: {reason})" if model == "auto" else ""),
-            stacklevel=3,
-        )
-    lg, knotes = log10_gamma(info, batch, opts)
-    notes.extend(knotes)
+    name, opts, fallback = choice_for(model, missing=missing, sizes=sizes, davies_coefficient=davies_coefficient,
+                                      bdot=bdot, setschenow=setschenow, unsymmetrical=unsymmetrical)
+    batch = batch_of(solution)
+    choice = resolve_model(batch, name, options=opts, fallback=fallback)
+    ev = evaluate(choice, batch)
+    for problem in ev.violations:
+        warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))
+    notes = list(choice.lacking and [choice.reason] or []) + list(ev.notes)
     shape = solution.shape
     gam = {}
     for k, n in enumerate(batch.names):
-        g = np.power(10.0, lg[k]).reshape(shape)
+        g = np.exp(LN10 * ev.log10_gamma[k]).reshape(shape)
         gam[n] = float(g) if g.ndim == 0 else g
-    return ActivityCoefficients(gam, info, reason, notes, solution.ionic_strength, in_range)
+    return ActivityCoefficients(gam, choice, notes, solution.ionic_strength, ev.violations)
 
 
 @dataclass(frozen=True)
@@ -298,21 +238,24 @@ def mean_activity_coefficient(solution: Solution, salt: str, model: str = "auto"
     return MeanActivityCoefficient(float(v) if np.ndim(v) == 0 else v, s.text, g.model, conv, g.notes)
 
 
-def _pitzer_for(solution: Solution, missing="error"):
+def _pitzer_for(solution: Solution, missing: str = "error"):
     if not isinstance(solution, Solution):
         raise InputError(f"needs a Solution, got {type(solution).__name__}")
-    b = _batch(solution)
+    name, opts, fallback = choice_for("pitzer", missing=missing)
+    if fallback is not None:
+        raise InputError(f"missing={missing!r}: the osmotic coefficient and water activity come from the Pitzer "
+                         "model only; allowed 'error' or 'zero'")
+    b = batch_of(solution)
+    choice = resolve_model(b, name, options=opts)
+    for problem in choice.info.violations(b, opts):
+        warn_range(str(problem))
     ci = np.flatnonzero(b.z > 0)
     ai = np.flatnonzero(b.z < 0)
     ni = np.flatnonzero(b.z == 0)
     p = pz.pitzer_set(tuple(b.names[i] for i in ci), tuple(b.names[i] for i in ai),
-                      tuple(int(b.z[i]) for i in ci), tuple(int(b.z[i]) for i in ai), missing)
-    finite = b.ionic[np.isfinite(b.ionic)]
-    if finite.size and finite.max() > 6.0:
-        warn_range(f"model pitzer: ionic strength {finite.max():.4g} mol/kg is above its range 0–6 mol/kg",
-                   stacklevel=4)
-    aphi = water._dh_a(b.t) * math.log(10) / 3
-    phi = pz.osmotic(p, b.m[ci], b.m[ai], b.m[ni].sum(axis=0), b.t, aphi)
+                      tuple(int(b.z[i]) for i in ci), tuple(int(b.z[i]) for i in ai), opts.missing)
+    aphi = water.dh_a_array(b.t) * LN10 / 3
+    phi = pz.osmotic(p, b.m[ci], b.m[ai], b.m[ni].sum(axis=0), b.t, aphi, opts.unsymmetrical)
     total = b.m.sum(axis=0)
     return phi.reshape(solution.shape), total.reshape(solution.shape)
 
@@ -407,15 +350,9 @@ def compare_models(solution: Solution, models=None, **options) -> ModelCompariso
     for name in names:
         info = get_model(name)
         try:
-            with warnings.catch_warnings():
+            with warnings.catch_warnings(), strict(False):
                 warnings.simplefilter("ignore", ValidityRangeWarning)
-                if is_strict():
-                    from .errors import strict
-
-                    with strict(False):
-                        g = activity_coefficients(solution, info.name, **options)
-                else:
-                    g = activity_coefficients(solution, info.name, **options)
+                g = activity_coefficients(solution, info.name, **options)
         except MissingParameterError as exc:
             skipped[info.name] = str(exc)
             continue

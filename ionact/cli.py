@@ -154,6 +154,11 @@ def cmd_design(args) -> int:
         for n in example_names():
             print(n)
         return 0
+    if args.help_keys:
+        from .method import keys_help
+
+        print(keys_help())
+        return 0
     if (args.method is None) == (args.example is None):
         raise IonactError("give a method file, or --example NAME (see --list-examples)")
     kw = load_method(args.method if args.method is not None else f"example:{args.example}")
@@ -171,7 +176,7 @@ def cmd_design(args) -> int:
         except ImportError:
             raise IonactError("--plot needs matplotlib: pip install 'ionact[plot]'") from None
     _emit(args, d.to_dict(), d.report())
-    return 0
+    return d.exit_status
 
 
 def cmd_check(args) -> int:
@@ -230,7 +235,9 @@ def build_parser() -> argparse.ArgumentParser:
     from .models.registry import model_names
 
     p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients and "
-                                "ionic strength adjuster design.")
+                                "ionic strength adjuster design.",
+                                epilog="exit status: 0 success, 1 a check failed (the report is still printed), "
+                                "2 bad input (one line on standard error; --debug shows the traceback)")
     p.add_argument("--debug", action="store_true", help="show tracebacks")
     sub = p.add_subparsers(dest="command", required=True)
 
@@ -259,7 +266,10 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
     c.set_defaults(func=cmd_convert)
 
-    de = sub.add_parser("design", help="design or evaluate an ionic strength adjuster from a method file")
+    de = sub.add_parser("design", help="design or evaluate an ionic strength adjuster from a method file",
+                        description="Design or evaluate an ionic strength adjuster from a method file. Exit status: "
+                        "0 every check ok or warning, 1 a check failed (the report is still printed), 2 bad input.",
+                        epilog="example: ionact design --example nitrate_irrigation --out design.json")
     de.add_argument("method", nargs="?", help="METHOD.toml (keys documented in the README)")
     de.add_argument("--example", help="use a method file shipped with ionact (see --list-examples)")
     de.add_argument("--list-examples", action="store_true", help="list the shipped method files")
@@ -267,6 +277,7 @@ def build_parser() -> argparse.ArgumentParser:
     de.add_argument("--json", action="store_true", help="print the design as JSON")
     de.add_argument("--out", help="also write the design JSON to this file (input for 'ionact check')")
     de.add_argument("--plot", help="write a figure of the design to this PNG file")
+    de.add_argument("--help-keys", action="store_true", help="list the method-file tables and keys")
     de.set_defaults(func=cmd_design)
 
     ch = sub.add_parser("check", help="check a batch of samples against an adjuster design before measuring")

@@ -22,9 +22,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from .activity import _options, select_model
+from .constants import LN10
 from .errors import InputError, ValidityRangeWarning, warn_range
-from .models.registry import MODELS, Batch, Options, get_model, log10_gamma
+from .models.registry import Batch
+from .models.resolver import ModelChoice, choice_for, evaluate, log10_gamma, resolve_model
 from .solution import Solution
 from .species import Ion, Salt, resolve_ion
 from .units import MOLAL, Amount, convert_amount, parse_amount
@@ -38,7 +39,6 @@ __all__ = [
     "px_from_activity",
 ]
 
-LN10 = math.log(10.0)
 MAX_IONIC_STRENGTH = 10.0  # mol/kg: the search for a root stops here
 _TOL = 1e-12
 
@@ -108,25 +108,22 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
     return _Problem(tuple(names), tuple(ions), z, base, stoich, k, np.asarray(t, dtype=float).reshape(size), shape)
 
 
-def _ln_gamma(p: _Problem, info, opts: Options, m_analyte: np.ndarray, rows=None) -> np.ndarray:
+def _batch(p: _Problem, m_analyte: np.ndarray, rows: np.ndarray | None = None) -> Batch:
     base = p.base if rows is None else p.base[:, rows]
     t = p.t if rows is None else p.t[rows]
     m = base + p.stoich[:, None] * m_analyte[None, :]
-    ionic = 0.5 * (p.z**2) @ m
-    lg, _ = log10_gamma(info, Batch(p.names, p.ions, p.z, m, t, ionic), opts)
-    return lg[p.k] * LN10
+    return Batch.of(p.ions, m, t)
 
 
-def _choose(p: _Problem, model: str, opts: Options, m_guess: np.ndarray):
-    if model != "auto":
-        return get_model(model), "requested"
-    m = p.base + p.stoich[:, None] * m_guess[None, :]
-    imax = float(np.max(0.5 * (p.z**2) @ m)) if m.size else 0.0
-    name, reason = select_model(p.ions, imax, opts)
-    return MODELS[name], reason
+def _ln_gamma(p: _Problem, choice: ModelChoice, m_analyte: np.ndarray, rows=None) -> np.ndarray:
+    return log10_gamma(choice, _batch(p, m_analyte, rows))[p.k] * LN10
 
 
-def _solve(p: _Problem, info, opts: Options, ln_a: np.ndarray):
+def _choose(p: _Problem, model: str, opts, fallback, m_guess: np.ndarray) -> ModelChoice:
+    return resolve_model(_batch(p, m_guess), model, options=opts, fallback=fallback)
+
+
+def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
     """Smallest root of x + ln γ(e^x) − ln a = 0 for every sample; returns x and a status mask."""
     # cap: the analyte alone (with its counter-ion) would reach MAX_IONIC_STRENGTH
     i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
@@ -143,8 +140,8 @@ def _solve(p: _Problem, info, opts: Options, ln_a: np.ndarray):
             if not np.any(act):
                 break
             xa = x[act]
-            f = xa + _ln_gamma(p, info, opts, np.exp(xa), np.flatnonzero(act)) - ln_a[act]
-            f2 = (xa + h) + _ln_gamma(p, info, opts, np.exp(xa + h), np.flatnonzero(act)) - ln_a[act]
+            f = xa + _ln_gamma(p, choice, np.exp(xa), np.flatnonzero(act)) - ln_a[act]
+            f2 = (xa + h) + _ln_gamma(p, choice, np.exp(xa + h), np.flatnonzero(act)) - ln_a[act]
             d = (f2 - f) / h
             lo_a, hi_a = lo[act], hi[act]
             lo_a = np.where(f < 0, np.maximum(lo_a, xa), lo_a)
@@ -162,18 +159,18 @@ def _solve(p: _Problem, info, opts: Options, ln_a: np.ndarray):
             lo[act], hi[act] = lo_a, hi_a
             idx = np.flatnonzero(act)
             done[idx[conv | stuck]] = True
-        final = x + _ln_gamma(p, info, opts, np.exp(x)) - ln_a
+        final = x + _ln_gamma(p, choice, np.exp(x)) - ln_a
     ok = np.abs(final) < 1e-9
     return x, ok
 
 
-def _max_reachable(p: _Problem, info, opts, row: int) -> float:
+def _max_reachable(p: _Problem, choice: ModelChoice, row: int) -> float:
     """Largest activity the model reaches for one sample, scanning molality up to the cap."""
     i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
     grid = np.geomspace(1e-12, MAX_IONIC_STRENGTH / i_per_m, 400)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityRangeWarning)
-        lng = _ln_gamma(p, info, opts, grid, np.full(grid.size, row))
+        lng = _ln_gamma(p, choice, grid, np.full(grid.size, row))
     return float(np.max(grid * np.exp(lng)))
 
 
@@ -206,6 +203,8 @@ class ActivityConversion:
     model: str
     reason: str
     solution: Solution
+    choice: ModelChoice | None = None
+    notes: tuple[str, ...] = ()
 
     def concentration(self, unit: str = "mol/kg"):
         """The analyte concentration in ``unit`` (mol/kg, mmol/kg, mol/L, mmol/L, mg/L, µg/L,
@@ -227,24 +226,22 @@ def _out(x, shape):
     return float(x) if x.ndim == 0 else x
 
 
-def _final(ion, counter, p, m_an, info, reason, opts, density=None) -> ActivityConversion:
-    m = p.base + p.stoich[:, None] * m_an[None, :]
-    ionic = 0.5 * (p.z**2) @ m
-    imax = float(np.max(ionic[np.isfinite(ionic)])) if ionic.size else 0.0
-    if imax > info.max_ionic_strength:
-        warn_range(f"model {info.name}: ionic strength {imax:.4g} mol/kg is above its range "
-                   f"0–{info.max_ionic_strength:g} mol/kg", stacklevel=4)
-    lg, _ = log10_gamma(info, Batch(p.names, p.ions, p.z, m, p.t, ionic), opts)
-    gamma = np.power(10.0, lg[p.k])
-    sol = Solution._from_arrays(p.names, {i.name: i for i in p.ions},
-                                m.reshape(len(p.names), *p.shape), p.t.reshape(p.shape), density)
+def _final(ion, counter, p, m_an, choice: ModelChoice, density=None) -> ActivityConversion:
+    batch = _batch(p, m_an)
+    ev = evaluate(choice, batch)
+    for problem in ev.violations:
+        warn_range(str(problem))
+    gamma = np.exp(LN10 * ev.log10_gamma[p.k])
+    sol = Solution.from_arrays(p.ions, batch.m.reshape(len(p.names), *p.shape), p.t.reshape(p.shape),
+                               density=density)
     return ActivityConversion(ion.name, counter.name if counter else None, _out(m_an, p.shape),
-                              _out(gamma * m_an, p.shape), _out(gamma, p.shape), _out(ionic, p.shape),
-                              info.name, reason, sol)
+                              _out(gamma * m_an, p.shape), _out(gamma, p.shape), _out(batch.ionic, p.shape),
+                              choice.name, choice.reason, sol, choice, tuple(ev.notes))
 
 
 def concentration_from_activity(ion, activity, matrix: Solution | None = None, counter_ion=None,
-                                model: str = "auto", temperature=None, **model_options) -> ActivityConversion:
+                                model: str = "auto", temperature=None, missing: str = "error",
+                                **model_options) -> ActivityConversion:
     """The analyte concentration that gives a measured activity in a matrix.
 
     Parameters
@@ -296,29 +293,29 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
     if matrix is not None and temperature is not None and np.any(np.asarray(temperature) != matrix._t):
         raise InputError(f"temperature {temperature!r} differs from the matrix's {matrix.temperature!r}; "
                          "set the temperature on the matrix")
-    opts = _options(**model_options)
+    name, opts, fallback = choice_for(model, missing=missing, **model_options)
     p = _problem(an, counter, matrix, a.shape, temperature)
     ln_a = np.log(np.broadcast_to(a, p.shape).reshape(-1))
-    info, reason = _choose(p, model, opts, np.exp(ln_a))
-    x, ok = _solve(p, info, opts, ln_a)
-    if model == "auto":  # re-select on the converged ionic strength
-        info2, reason2 = _choose(p, "auto", opts, np.exp(x))
-        if info2.name != info.name:
-            info, reason = info2, reason2
-            x, ok = _solve(p, info, opts, ln_a)
+    choice = _choose(p, name, opts, fallback, np.exp(ln_a))
+    x, ok = _solve(p, choice, ln_a)
+    if name == "auto":  # re-select on the converged ionic strength
+        choice2 = _choose(p, "auto", opts, fallback, np.exp(x))
+        if choice2.name != choice.name:
+            choice = choice2
+            x, ok = _solve(p, choice, ln_a)
     if not np.all(ok):
         rows = np.flatnonzero(~ok)
-        best = _max_reachable(p, info, opts, int(rows[0]))
+        best = _max_reachable(p, choice, int(rows[0]))
         where = f" (row {int(rows[0])})" if p.shape else ""
         raise InputError(
             f"no concentration of {an.name} gives activity {float(np.exp(ln_a[rows[0]])):.6g}{where} under model "
-            f"{info.name}: the largest reachable activity is {best:.4g} (up to I = {MAX_IONIC_STRENGTH:g} mol/kg)"
+            f"{choice.name}: the largest reachable activity is {best:.4g} (up to I = {MAX_IONIC_STRENGTH:g} mol/kg)"
         )
-    return _final(an, counter, p, np.exp(x), info, reason, opts)
+    return _final(an, counter, p, np.exp(x), choice)
 
 
 def activity_from_concentration(ion, amount, matrix: Solution | None = None, counter_ion=None,
-                                model: str = "auto", temperature=None, density=None,
+                                model: str = "auto", temperature=None, density=None, missing: str = "error",
                                 **model_options) -> ActivityConversion:
     """The activity an electrode will see for a given analyte concentration in a matrix.
 
@@ -353,14 +350,12 @@ def activity_from_concentration(ion, amount, matrix: Solution | None = None, cou
         if counter is not None:
             plist.append((counter, Amount(value * abs(an.charge) / abs(counter.charge), "molar")))
         t = matrix._t if matrix is not None else (25.0 if temperature is None else temperature)
-        sol = Solution.__new__(Solution)
-        sol._build(plist, t, None, 0.999, density, check_duplicates=False)
+        sol = Solution.from_parts(plist, t, charge_tolerance=0.999, density=density)
         value = np.asarray(sol.molality(an.name))
-    opts = _options(**model_options)
+    name, opts, fallback = choice_for(model, missing=missing, **model_options)
     p = _problem(an, counter, matrix, value.shape, temperature)
     m_an = np.broadcast_to(value, p.shape).reshape(-1).astype(float)
-    info, reason = _choose(p, model, opts, m_an)
-    return _final(an, counter, p, m_an, info, reason, opts, density=None)
+    return _final(an, counter, p, m_an, _choose(p, name, opts, fallback, m_an))
 
 
 def activity_from_px(px):

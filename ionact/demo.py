@@ -12,9 +12,10 @@ import warnings
 import numpy as np
 
 from .activity import activity_coefficients
-from .adjuster import compare_adjusters, design_adjuster
+from .adjuster import Budget, Electrode, SamplePopulation, compare_adjusters, design_adjuster
 from .errors import InfeasibleDesignError, ValidityRangeWarning
 from .solution import Solution
+from .species import typeset
 
 # A survey of irrigation water around the (invented) Harrowfield polder, mg/L.
 SURVEY_IONS = ("Ca^2+", "Mg^2+", "Na+", "K+", "HCO3-", "SO4^2-", "Cl-", "NO3-")
@@ -47,11 +48,17 @@ def run(out=None) -> None:
     out = out or sys.stdout
     w = out.write
     names, batch, added = survey_solution()
-    g = activity_coefficients(batch, model="auto")
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", ValidityRangeWarning)
+        g = activity_coefficients(batch, model="auto")
     w("ionact demo — a nitrate electrode method for the Harrowfield polder irrigation survey\n")
     w("(invented scenario and data; compositions in mg/L, charge-balanced on Cl- as shown)\n\n")
-    w(f"1. The samples, 20 °C — activity model {g.model}: {g.reason}\n\n")
-    head = f"{'sample':<22}{'I mol/kg':>10}{'Cl- adjust':>12}{'γ NO3-':>9}{'γ Ca^2+':>9}"
+    w(f"1. The samples, 20 °C — activity model {g.model} (auto: the most accurate model with parameters for "
+      "every ion)\n")
+    for c in caught:
+        w(f"   note: {c.message}\n")
+    w("\n")
+    head = f"{'sample':<22}{'I mol/kg':>10}{'Cl- adjust':>12}{'γ ' + typeset('NO3-'):>9}{'γ ' + typeset('Ca^2+'):>9}"
     w(head + "\n" + "-" * len(head) + "\n")
     for k, name in enumerate(names):
         w(f"{name:<22}{batch.ionic_strength[k]:>10.4f}{added[k] * 1e3:>9.3f} mM"
@@ -62,21 +69,21 @@ def run(out=None) -> None:
 
     _, matrices, _ = survey_solution(without=("NO3-",))
     matrices = matrices.with_temperature(25.0)
-    job = dict(analyte="NO3-", samples=matrices, analyte_range=("0.5 mg/L as N", "30 mg/L as N"),
-               standard_salt="KNO3", tolerance_mv=0.5, lowest_temperature=12.0,
-               linear_range=("0.1 mg/L as N", "1400 mg/L as N"), selectivity=DEMO_SELECTIVITY,
-               matrix_ions={"Ca^2+": "300 mg/L"}, name="Harrowfield irrigation survey",
-               sample_labels=names)
+    job = dict(analyte="NO3-", samples=SamplePopulation(matrices=matrices, labels=tuple(names),
+                                                        matrix_ions={"Ca^2+": "300 mg/L"}),
+               analyte_range=("0.5 mg/L as N", "30 mg/L as N"), standard_salt="KNO3", budget=Budget(mv=0.5),
+               lowest_temperature=12.0, name="Harrowfield irrigation survey",
+               electrode=Electrode(linear_range=("0.1 mg/L as N", "1400 mg/L as N"), selectivity=DEMO_SELECTIVITY))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityRangeWarning)
         w("2. First try: the smallest (NH4)2SO4 stock that holds 0.5 mV at 2 mL per 100 mL\n\n")
         try:
-            design_adjuster(salts={"(NH4)2SO4": 2.0}, volume_ratio=0.02, solve="stock", **job)
+            design_adjuster(stock={"(NH4)2SO4": 2.0}, volume_ratio=0.02, solve="stock", **job)
             w("   feasible\n\n")
         except InfeasibleDesignError as exc:
             w(f"   not possible — {exc}\n\n")
         w("3. So keep a 2 mol/L stock and solve for the smallest volume ratio instead\n\n")
-        d = design_adjuster(salts={"(NH4)2SO4": 2.0}, volume_ratio=0.02, solve="ratio", max_ratio=0.5, **job)
+        d = design_adjuster(stock={"(NH4)2SO4": 2.0}, volume_ratio=0.02, solve="ratio", max_ratio=0.5, **job)
         w(d.report() + "\n\n")
         c = compare_adjusters({"(NH4)2SO4": {"(NH4)2SO4": 2.0}, "Na2SO4": {"Na2SO4": 1.0},
                                "KCl": {"KCl": 2.0}}, volume_ratio=0.1, **job)

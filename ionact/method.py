@@ -1,29 +1,78 @@
 """Method files: a TOML description of an ISA design job, read into design_adjuster arguments.
 
-The keys are ionact's own (documented in the README); unknown or missing keys are errors
-naming the key and the file. Files are read with ``tomllib`` (no code is executed).
+Each table maps one to one onto a record of the job (``[budget]`` → :class:`Budget`,
+``[samples]`` → :class:`SamplePopulation`, ``[electrode]`` → :class:`Electrode`,
+``[adjuster.buffer]`` → :class:`Buffer`, ``[adjuster.stock]`` → stock components,
+``[species.NAME]`` → an :class:`~ionact.Ion` the tables lack). The keys are listed once,
+in :data:`METHOD_KEYS`, which both the reader and ``ionact design --help-keys`` use.
+Unknown or missing keys are errors naming the key and the file. Files are read with
+``tomllib`` (no code is executed).
 """
 
 from __future__ import annotations
 
 import tomllib
+from collections.abc import Mapping
 from importlib import resources
 from pathlib import Path
+from typing import Any
 
-from .adjuster import Buffer
+from .adjuster import Budget, Buffer, Electrode, SamplePopulation, StockComponent
 from .errors import InputError
+from .species import Ion, resolve_ion
 
-__all__ = ["load_method", "example_path", "example_names"]
+__all__ = ["load_method", "example_path", "example_names", "METHOD_KEYS", "keys_help", "MAX_METHOD_BYTES"]
 
-_TOP = {"name", "analyte", "temperature", "lowest_temperature", "model", "density", "levels",
-        "budget", "analyte_range", "samples", "adjuster", "electrode", "matrix_ions"}
-_BUDGET = {"mv", "percent"}
-_ANALYTE = {"low", "high", "standard_salt", "standards"}
-_SAMPLES = {"ionic_strength", "background", "conductivity", "tds", "rule"}
-_ADJUSTER = {"solve", "volume_ratio", "max_ratio", "solubility_margin", "stock", "buffer", "sample_acidity",
-             "sample_ph"}
-_BUFFER = {"acid", "base", "pH", "total", "pka"}
-_ELECTRODE = {"linear_range", "selectivity"}
+MAX_METHOD_BYTES = 1_000_000
+
+# table -> {key: description}; "*" marks a table of free keys
+METHOD_KEYS: dict[str, dict[str, str]] = {
+    "(top level)": {
+        "analyte": "the measured ion, e.g. \"NO3-\" (required)",
+        "name": "a name for the report",
+        "temperature": "°C of measurement (default 25)",
+        "lowest_temperature": "°C the stock is stored at, for solubility (default: temperature)",
+        "model": "activity model or \"auto\"",
+        "missing": "\"error\", \"zero\" or a fallback model name when a model lacks parameters",
+        "density": "\"water\" to take 1 L of solution as ρ_w kg of water (default: the density model)",
+        "levels": "analyte levels (and default standards) across the range (default 7)",
+    },
+    "budget": {"mv": "largest |ΔE| in mV",
+               "percent": "largest relative error in % (exactly one of the two)"},
+    "analyte_range": {"low": "lowest analyte level (mol/L or unit string; required)",
+                      "high": "highest analyte level (required)",
+                      "standard_salt": "the analyte's salt in the standards",
+                      "standards": "list of standard concentrations"},
+    "samples": {"ionic_strength": "[low, high] mol/kg", "conductivity": "[low, high] µS/cm or unit strings",
+                "tds": "[low, high] mg/L or unit strings (exactly one of the three)",
+                "background": "salt standing for the matrix (default NaCl)", "rule": "conductivity/TDS rule of thumb",
+                "acidity": "[low, high] strong acid (+) or base (−) in the samples, mol/L",
+                "ph": "pH of the treated solutions when there is no buffer"},
+    "samples.matrix_ions": {
+        "*": "ion = highest level in the samples (interference and precipitation checks)"},
+    "adjuster": {"solve": "\"stock\", \"ratio\" or \"none\"", "volume_ratio": "stock volume per sample volume",
+                 "max_ratio": "largest ratio when solving the ratio",
+                 "solubility_margin": "fraction kept below saturation"},
+    "adjuster.stock": {"*": "component = mol/L, or component = {amount, role, ions}; role is inert (scaled when "
+                            "solving), fixed (kept as given) — required for custom components"},
+    "adjuster.buffer": {"acid": "acid carrier (required)", "base": "base carrier (required)",
+                        "pH": "target pH (required)", "total": "acid + base in the stock, mol/L", "pka": "override"},
+    "electrode": {"linear_range": "[low, high] in the treated solution"},
+    "electrode.selectivity": {"*": "ion = this electrode's selectivity coefficient K"},
+    "species.NAME": {"formula": "chemical formula without charge (required)", "charge": "signed charge (required)",
+                     "molar_mass": "g/mol (default: from the formula)", "size": "ion-size parameter å, Å",
+                     "volume": "apparent molar volume at infinite dilution, cm³/mol"},
+}
+
+
+def keys_help() -> str:
+    """The method-file keys as text (what ``ionact design --help-keys`` prints)."""
+    lines = []
+    for table, keys in METHOD_KEYS.items():
+        lines.append(table if table == "(top level)" else f"[{table}]")
+        for k, v in keys.items():
+            lines.append(f"  {'<key>' if k == '*' else k:<20} {v}")
+    return "\n".join(lines)
 
 
 def example_names() -> list[str]:
@@ -32,27 +81,29 @@ def example_names() -> list[str]:
                   if p.name.endswith(".toml"))
 
 
-def example_path(name: str):
+def example_path(name: str) -> Any:
     """Path of a shipped example method file by name (without ``.toml``)."""
     if name not in example_names():
         raise InputError(f"no example method {name!r}; available: {', '.join(example_names())}")
     return resources.files("ionact").joinpath("examples", f"{name}.toml")
 
 
-def _check_keys(table: dict, allowed: set[str], where: str, src: str) -> None:
+def _check_keys(table: Mapping[str, Any], section: str, src: str) -> None:
+    allowed = set(METHOD_KEYS[section])
     unknown = sorted(set(table) - allowed)
     if unknown:
+        where = "the top level" if section == "(top level)" else f"[{section}]"
         raise InputError(f"{src}: unknown key(s) {', '.join(repr(k) for k in unknown)} in {where}; "
                          f"allowed: {', '.join(sorted(allowed))}")
 
 
-def _need(table: dict, key: str, where: str, src: str):
+def _need(table: Mapping[str, Any], key: str, where: str, src: str) -> Any:
     if key not in table:
         raise InputError(f"{src}: missing key {key!r} in {where}")
     return table[key]
 
 
-def _table(data: dict, key: str, src: str, required: bool = True) -> dict:
+def _table(data: Mapping[str, Any], key: str, src: str, required: bool = True) -> dict[str, Any]:
     if key not in data:
         if required:
             raise InputError(f"{src}: missing table [{key}]")
@@ -63,94 +114,140 @@ def _table(data: dict, key: str, src: str, required: bool = True) -> dict:
     return v
 
 
-def _pair(value, where: str, src: str) -> tuple:
-    if not isinstance(value, list | tuple) or len(value) != 2:
-        raise InputError(f"{src}: {where} must be a pair [low, high], got {value!r}")
-    return tuple(value)
+def _read(path: Any) -> tuple[dict[str, Any], str]:
+    if isinstance(path, str) and path.startswith("example:"):
+        path = example_path(path.split(":", 1)[1])
+    src = str(path)
+    opener = path.open if hasattr(path, "open") and not isinstance(path, str | Path) else None
+    try:
+        with (opener("rb") if opener else open(path, "rb")) as fh:
+            raw = fh.read(MAX_METHOD_BYTES + 1)
+    except OSError as exc:
+        raise InputError(f"cannot read method file {src}: {exc.strerror or exc}") from None
+    if len(raw) > MAX_METHOD_BYTES:
+        raise InputError(f"{src}: larger than {MAX_METHOD_BYTES} bytes; a method file is a short text")
+    try:
+        return tomllib.loads(raw.decode("utf-8")), src
+    except UnicodeDecodeError:
+        raise InputError(f"{src}: not UTF-8 text") from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{src}: not valid TOML ({exc})") from None
 
 
-def load_method(path) -> dict:
+def _species(data: Mapping[str, Any], src: str) -> dict[str, Ion]:
+    out = {}
+    for key, spec in _table(data, "species", src, required=False).items():
+        if not isinstance(spec, dict):
+            raise InputError(f"{src}: [species.{key}] must be a table")
+        _check_keys(spec, "species.NAME", src)
+        ion = Ion.from_dict({"formula": _need(spec, "formula", f"[species.{key}]", src),
+                             "charge": _need(spec, "charge", f"[species.{key}]", src),
+                             "molar_mass": spec.get("molar_mass"), "size": spec.get("size"),
+                             "volume": spec.get("volume")})
+        out[key] = ion
+        out[ion.name] = ion
+    return out
+
+
+def _stock(adj: Mapping[str, Any], species: Mapping[str, Ion], src: str) -> list[StockComponent]:
+    stock = _need(adj, "stock", "[adjuster]", src)
+    if not isinstance(stock, dict) or not stock:
+        raise InputError(f"{src}: [adjuster.stock] must be a table of component = mol/L")
+    comps = []
+    for name, value in stock.items():
+        if isinstance(value, dict):
+            extra = set(value) - {"amount", "role", "ions"}
+            if extra:
+                raise InputError(f"{src}: [adjuster.stock] {name}: unknown key(s) {sorted(extra)}; allowed amount, "
+                                 "role, ions")
+            ions = value.get("ions")
+            if ions is not None:
+                if not isinstance(ions, dict):
+                    raise InputError(f"{src}: [adjuster.stock] {name}: ions must be a table of ion = count")
+                ions = {species[k] if k in species else resolve_ion(k): n for k, n in ions.items()}
+            comps.append(StockComponent.of(name, _need(value, "amount", f"[adjuster.stock] {name}", src),
+                                           value.get("role"), ions))
+        else:
+            comps.append(StockComponent.of(name, value))
+    return comps
+
+
+def _samples(data: Mapping[str, Any], src: str) -> SamplePopulation:
+    samples = dict(_table(data, "samples", src))
+    mi = samples.pop("matrix_ions", {})
+    _check_keys(samples, "samples", src)
+    if not isinstance(mi, dict):
+        raise InputError(f"{src}: [samples.matrix_ions] must be a table of ion = highest level")
+    return SamplePopulation(ionic_strength=samples.get("ionic_strength"), conductivity=samples.get("conductivity"),
+                            tds=samples.get("tds"), background=samples.get("background", "NaCl"),
+                            rule=samples.get("rule"), matrix_ions=mi, acidity=samples.get("acidity"),
+                            ph=samples.get("ph"))
+
+
+def _electrode(data: Mapping[str, Any], src: str) -> Electrode:
+    el = dict(_table(data, "electrode", src, required=False))
+    sel = el.pop("selectivity", {})
+    _check_keys(el, "electrode", src)
+    if not isinstance(sel, dict):
+        raise InputError(f"{src}: [electrode.selectivity] must be a table of ion = K")
+    return Electrode(linear_range=el.get("linear_range"), selectivity=sel)
+
+
+def load_method(path: Any) -> dict[str, Any]:
     """Read a method file into keyword arguments for :func:`ionact.design_adjuster`.
 
     Raises
     ------
     InputError
-        Unreadable file, TOML syntax errors, unknown or missing keys, wrong types.
+        Unreadable or oversized file, TOML syntax errors, unknown or missing keys, values
+        of the wrong type or range (each named with the file).
     """
-    if isinstance(path, str) and path.startswith("example:"):
-        path = example_path(path.split(":", 1)[1])
-    src = str(path)
+    data, src = _read(path)
+    top = {k: v for k, v in data.items() if not isinstance(v, dict)}
+    tables = set(data) - set(top)
+    _check_keys(top, "(top level)", src)
+    unknown = sorted(tables - {"budget", "analyte_range", "samples", "adjuster", "electrode", "species"})
+    if unknown:
+        raise InputError(f"{src}: unknown table(s) {', '.join(unknown)}")
     try:
-        raw = Path(path).read_bytes() if not hasattr(path, "read_bytes") else path.read_bytes()
-    except OSError as exc:
-        raise InputError(f"cannot read method file {src}: {exc.strerror or exc}") from None
-    try:
-        data = tomllib.loads(raw.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise InputError(f"{src}: not UTF-8 text") from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{src}: not valid TOML ({exc})") from None
-    _check_keys(data, _TOP, "the top level", src)
-    kw: dict = {"analyte": _need(data, "analyte", "the top level", src)}
-    for key in ("name", "temperature", "lowest_temperature", "model", "density", "levels"):
-        if key in data:
-            kw[key] = data[key]
+        return _job(data, top, src)
+    except InputError as exc:
+        msg = str(exc)
+        raise InputError(msg if msg.startswith(src) else f"{src}: {msg}") from None
+
+
+def _job(data: Mapping[str, Any], top: Mapping[str, Any], src: str) -> dict[str, Any]:
+    species = _species(data, src)
+    analyte = _need(top, "analyte", "the top level", src)
+    if not isinstance(analyte, str):
+        raise InputError(f"{src}: analyte {analyte!r} must be an ion notation such as \"F-\"")
+    kw: dict[str, Any] = {"analyte": species.get(analyte) or analyte}
+    for key in ("name", "temperature", "lowest_temperature", "model", "missing", "density", "levels"):
+        if key in top:
+            kw[key] = top[key]
     budget = _table(data, "budget", src)
-    _check_keys(budget, _BUDGET, "[budget]", src)
-    if ("mv" in budget) == ("percent" in budget):
-        raise InputError(f"{src}: [budget] needs exactly one of mv or percent")
-    if "mv" in budget:
-        kw["tolerance_mv"] = budget["mv"]
-    else:
-        kw["tolerance_percent"] = budget["percent"]
+    _check_keys(budget, "budget", src)
+    kw["budget"] = Budget(mv=budget.get("mv"), percent=budget.get("percent"))
     an = _table(data, "analyte_range", src)
-    _check_keys(an, _ANALYTE, "[analyte_range]", src)
+    _check_keys(an, "analyte_range", src)
     kw["analyte_range"] = (_need(an, "low", "[analyte_range]", src), _need(an, "high", "[analyte_range]", src))
     for key in ("standard_salt", "standards"):
         if key in an:
             kw[key] = an[key]
-    samples = _table(data, "samples", src)
-    _check_keys(samples, _SAMPLES, "[samples]", src)
-    given = [k for k in ("ionic_strength", "conductivity", "tds") if k in samples]
-    if len(given) != 1:
-        raise InputError(f"{src}: [samples] needs exactly one of ionic_strength, conductivity or tds")
-    key = given[0]
-    kw["sample_ionic_strength" if key == "ionic_strength" else key] = _pair(samples[key], f"[samples] {key}", src)
-    if "background" in samples:
-        kw["background"] = samples["background"]
-    if "rule" in samples:
-        kw["estimate_rule"] = samples["rule"]
-    adj = _table(data, "adjuster", src)
-    _check_keys(adj, _ADJUSTER, "[adjuster]", src)
-    stock = _need(adj, "stock", "[adjuster]", src)
-    if not isinstance(stock, dict) or not stock:
-        raise InputError(f"{src}: [adjuster.stock] must be a table of salt = mol/L")
-    kw["salts"] = dict(stock)
-    for key in ("solve", "volume_ratio", "max_ratio", "solubility_margin", "sample_ph"):
-        if key in adj:
-            kw[key] = adj[key]
-    if "sample_acidity" in adj:
-        kw["sample_acidity"] = _pair(adj["sample_acidity"], "[adjuster] sample_acidity", src)
-    if "buffer" in adj:
-        b = adj["buffer"]
-        if not isinstance(b, dict):
+    kw["samples"] = _samples(data, src)
+    adj = dict(_table(data, "adjuster", src))
+    buf = adj.pop("buffer", None)
+    kw["stock"] = _stock(adj, species, src)
+    adj.pop("stock")
+    _check_keys(adj, "adjuster", src)
+    kw.update(adj)
+    if buf is not None:
+        if not isinstance(buf, dict):
             raise InputError(f"{src}: [adjuster.buffer] must be a table")
-        _check_keys(b, _BUFFER, "[adjuster.buffer]", src)
-        kw["buffer"] = Buffer(acid=_need(b, "acid", "[adjuster.buffer]", src),
-                              base=_need(b, "base", "[adjuster.buffer]", src),
-                              pH=_need(b, "pH", "[adjuster.buffer]", src),
-                              total=b.get("total", 1.0), pka=b.get("pka"))
-    el = _table(data, "electrode", src, required=False)
-    _check_keys(el, _ELECTRODE, "[electrode]", src)
-    if "linear_range" in el:
-        kw["linear_range"] = _pair(el["linear_range"], "[electrode] linear_range", src)
-    if "selectivity" in el:
-        if not isinstance(el["selectivity"], dict):
-            raise InputError(f"{src}: [electrode.selectivity] must be a table of ion = K")
-        kw["selectivity"] = dict(el["selectivity"])
-    if "standards" in kw and not isinstance(kw["standards"], list):
-        raise InputError(f"{src}: [analyte_range] standards must be a list")
-    mi = _table(data, "matrix_ions", src, required=False)
-    if mi:
-        kw["matrix_ions"] = dict(mi)
+        _check_keys(buf, "adjuster.buffer", src)
+        kw["buffer"] = Buffer(acid=_need(buf, "acid", "[adjuster.buffer]", src),
+                              base=_need(buf, "base", "[adjuster.buffer]", src),
+                              pH=_need(buf, "pH", "[adjuster.buffer]", src), total=buf.get("total", 1.0),
+                              pka=buf.get("pka"))
+    kw["electrode"] = _electrode(data, src)
     return kw

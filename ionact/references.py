@@ -68,6 +68,24 @@ REFERENCES: dict[str, str] = {
         "W. F. Langelier, The analytical control of anti-corrosion water treatment, "
         "J. Am. Water Works Assoc. 28 (1936) 1500-1521 (from memory)"
     ),
+    "crc-density-mem": (
+        "CRC Handbook of Chemistry and Physics, concentrative properties of aqueous solutions: density "
+        "against mass percent at 20 °C (values from memory); the ions' Masson coefficients were fitted to "
+        "them (tools/fit_apparent_volumes.py)"
+    ),
+    "silvester-pitzer1977-mem": (
+        "L. F. Silvester, K. S. Pitzer, Thermodynamics of electrolytes 8. High-temperature properties, "
+        "including enthalpy and heat capacity, with application to sodium chloride, J. Phys. Chem. 81 (1977) "
+        "1822-1828 (first temperature derivatives at 25 °C, from memory; linear use stated for 0–50 °C)"
+    ),
+    "redlich-rosenfeld1931-mem": (
+        "O. Redlich, P. Rosenfeld, Das partielle molare Volumen von gelösten Elektrolyten I, Z. Phys. Chem. "
+        "A 155 (1931) 65-74 (limiting slope of apparent molar volumes, from memory)"
+    ),
+    "fuoss1958-mem": (
+        "R. M. Fuoss, Ionic association III. The equilibrium between ion pairs and free ions, J. Am. Chem. "
+        "Soc. 80 (1958) 5059-5061 (from memory)"
+    ),
     "codata2018": "CODATA 2018 recommended values of the fundamental physical constants",
     "helgeson1969-mem": (
         "H. C. Helgeson, Thermodynamics of hydrothermal systems at elevated temperatures "

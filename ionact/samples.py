@@ -26,10 +26,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from . import water
-from .activity import select_model
-from .adjuster import DESIGN_FORMAT, DESIGN_VERSION, AdjusterDesign
+from .adjuster import AdjusterDesign
+from .density import water_per_litre
 from .errors import InputError, IonactError, ValidityRangeWarning
-from .models.registry import MODELS, Batch, Options, get_model, log10_gamma, missing_for
+from .models.registry import Batch
+from .models.resolver import ModelChoice, log10_gamma, resolve_model
 from .solution import ionic_strength_from_conductivity, ionic_strength_from_tds
 from .species import Ion, Salt, resolve_ion
 from .units import MOLAR, parse_amount
@@ -51,50 +52,39 @@ class Method:
 
     analyte: Ion
     counter_ion: Ion
-    stock_ions: dict  # ion -> mol/L in the stock
+    stock_ions: dict  # Ion -> mol/L in the stock
     volume_ratio: float
     standards: tuple[float, ...]  # mol/L in the untreated standards
-    model: str
+    choice: ModelChoice
     temperature: float
     budget_mv: float
     envelope: tuple[float, float]  # untreated sample ionic strength the design was proven for, mol/kg
     analyte_range: tuple[float, float]
     linear_range: tuple[float, float] | None
     background: str = "NaCl"
+    density: str | None = None
+    selectivity: Mapping[str, float] | None = None
 
     @classmethod
     def from_design(cls, design) -> Method:
         """From an :class:`~ionact.AdjusterDesign` or the dict its ``to_dict()`` gives (JSON)."""
-        if isinstance(design, AdjusterDesign):
-            design = design.to_dict()
-        if not isinstance(design, Mapping):
-            raise InputError(f"a design must be an AdjusterDesign or its JSON dict, got {type(design).__name__}")
-        fmt, ver = design.get("format"), design.get("version")
-        if fmt != DESIGN_FORMAT:
-            raise InputError(f"not an ionact adjuster design (format {fmt!r}, expected {DESIGN_FORMAT!r})")
-        if ver != DESIGN_VERSION:
-            raise InputError(f"design JSON version {ver!r} is not supported (this ionact reads version "
-                             f"{DESIGN_VERSION}); re-run 'ionact design'")
-        need = ("analyte", "counter_ion", "stock_ions_mol_per_l", "volume_ratio", "standards_mol_per_l", "model",
-                "temperature", "budget_mv", "sample_ionic_strength", "analyte_range_mol_per_l")
-        missing = [k for k in need if k not in design]
-        if missing:
-            raise InputError(f"design JSON lacks {', '.join(missing)}")
-        try:
-            lin = design.get("linear_range_mol_per_l")
-            return cls(
-                analyte=resolve_ion(design["analyte"]), counter_ion=resolve_ion(design["counter_ion"]),
-                stock_ions={resolve_ion(k).name: float(v) for k, v in design["stock_ions_mol_per_l"].items()},
-                volume_ratio=float(design["volume_ratio"]),
-                standards=tuple(float(x) for x in design["standards_mol_per_l"]), model=str(design["model"]),
-                temperature=float(design["temperature"]), budget_mv=float(design["budget_mv"]),
-                envelope=tuple(float(x) for x in design["sample_ionic_strength"]),
-                analyte_range=tuple(float(x) for x in design["analyte_range_mol_per_l"]),
-                linear_range=tuple(float(x) for x in lin) if lin else None,
-                background=str(design.get("background", "NaCl")),
-            )
-        except (TypeError, ValueError, KeyError) as exc:
-            raise InputError(f"design JSON has a malformed value: {exc}") from None
+        if not isinstance(design, AdjusterDesign):
+            if not isinstance(design, Mapping):
+                raise InputError(f"a design must be an AdjusterDesign or its JSON dict, got {type(design).__name__}")
+            design = AdjusterDesign.from_dict(design)
+        species = design.custom_ions()
+
+        def ion(name: str) -> Ion:
+            return species[name] if name in species else resolve_ion(name)
+
+        return cls(
+            analyte=ion(design.analyte), counter_ion=ion(design.counter_ion),
+            stock_ions={ion(k): float(v) for k, v in design.stock_ions.items()},
+            volume_ratio=design.volume_ratio, standards=design.standards, choice=design.model,
+            temperature=design.temperature, budget_mv=design.budget_mv, envelope=design.envelope,
+            analyte_range=design.analyte_range, linear_range=design.linear_range, background=design.background,
+            density=design.density, selectivity=design.selectivity,
+        )
 
 
 @dataclass(frozen=True)
@@ -157,16 +147,18 @@ class SampleCheck:
         cols = [(h, v.tolist() if isinstance(v, np.ndarray) else list(v)) for h, v in self.columns()]
         return [{h: v[i] for h, v in cols} for i in range(len(self))]
 
-    def plot(self, path=None):
+    def plot(self, path=None, *, ax=None):
         """Each sample on ionic strength vs analyte level; the design's envelope and the
-        calibration range drawn; status by marker shape with a legend in words."""
-        import matplotlib
+        calibration range drawn; status by marker shape and colour with a legend in words.
 
-        if path is not None:
-            matplotlib.use("Agg")
-        import matplotlib.pyplot as plt
+        Returns the matplotlib Figure (drawn into ``ax`` when given; written to ``path`` when given).
+        """
+        from .plotting import MARKERS, PALETTE, new_figure, save
 
-        fig, ax = plt.subplots(figsize=(7.5, 5))
+        if ax is None:
+            fig, (ax,) = new_figure(1, (7.5, 5.0))
+        else:
+            fig = ax.figure
         f = self.unit_factor
         lo, hi = self.calibration_range
         e_hi = self.envelope[1]
@@ -174,14 +166,13 @@ class SampleCheck:
         y = np.where(self.analyte > 0, self.analyte / f, np.nan)
         finite = np.isfinite(x)
         xmin = np.nanmin(x) / 3 if finite.any() else 1e-5
-        ax.add_patch(plt.Rectangle((xmin, lo / f), e_hi - xmin, (hi - lo) / f, color="C2", alpha=0.15,
-                                   label="inside: calibrated range × proven ionic strength"))
-        ax.axhline(lo / f, color="C2", lw=0.8)
-        ax.axhline(hi / f, color="C2", lw=0.8)
-        ax.axvline(e_hi, color="C2", lw=0.8, ls="--")
-        markers = {INSIDE: ("o", "C0"), DILUTE: ("^", "C1"), CANNOT: ("X", "C3"), INVALID: ("s", "0.5")}
+        ax.fill_between([xmin, e_hi], lo / f, hi / f, color=PALETTE[2], alpha=0.15,
+                        label="inside: calibrated range × proven ionic strength")
+        ax.axvline(e_hi, color=PALETTE[2], lw=0.8, ls="--", label=f"proven sample I ≤ {e_hi:.3g} mol/kg")
+        styles = {INSIDE: (MARKERS[0], PALETTE[0]), DILUTE: (MARKERS[1], PALETTE[1]), CANNOT: (MARKERS[6], PALETTE[3]),
+                  INVALID: (MARKERS[2], "0.5")}
         st = np.array(self.status)
-        for s, (mk, col) in markers.items():
+        for s, (mk, col) in styles.items():
             sel = st == s
             if np.any(sel & np.isfinite(x) & np.isfinite(y)):
                 ax.scatter(x[sel], y[sel], marker=mk, color=col, label=f"{s} ({int(sel.sum())})", alpha=0.8)
@@ -192,11 +183,9 @@ class SampleCheck:
         ax.set_xlabel("sample ionic strength / mol kg$^{-1}$")
         ax.set_ylabel(f"expected analyte / {self.unit}")
         ax.set_title("batch range check")
-        ax.legend(fontsize=8, loc="best")
-        fig.tight_layout()
+        ax.legend(fontsize=8, loc="center left", bbox_to_anchor=(1.01, 0.5))
         if path is not None:
-            fig.savefig(path, dpi=110)
-            plt.close(fig)
+            save(fig, path)
         return fig
 
 
@@ -329,8 +318,8 @@ def check_samples(
     Examples
     --------
     >>> import ionact as ia
-    >>> d = ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, sample_ionic_strength=(0, 0.05),
-    ...                        analyte_range=(1e-5, 1e-3), tolerance_mv=1.0, solve="none", model="davies")
+    >>> d = ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, samples=ia.SamplePopulation(ionic_strength=(0, 0.05)),
+    ...                        analyte_range=(1e-5, 1e-3), budget=ia.Budget(mv=1.0), solve="none", model="davies")
     >>> r = ia.check_samples({"sample_id": ["a", "b", "c"], "analyte": [1e-4, 5e-3, 1e-6],
     ...                       "ionic_strength": [0.01, 0.01, 0.01]}, d)
     >>> r.status
@@ -480,8 +469,8 @@ def check_samples(
         add(ion)
     add(an)
     add(method.counter_ion)
-    for name in method.stock_ions:
-        add(resolve_ion(name))
+    for stock_ion in method.stock_ions:
+        add(stock_ion)
     nI = len(names)
     cm = np.zeros((nI, n))
     for ion, nu in bg_ions:
@@ -492,33 +481,16 @@ def check_samples(
     stoich[names.index(an.name)] = 1.0
     stoich[names.index(method.counter_ion.name)] += abs(an.charge) / abs(method.counter_ion.charge)
     isa = np.zeros(nI)
-    for name, c in method.stock_ions.items():
-        isa[names.index(name)] = c
-    z = np.array([i.charge for i in ions], dtype=float)
+    for stock_ion, c in method.stock_ions.items():
+        isa[names.index(stock_ion.name)] = c
     r = method.volume_ratio
     t = method.temperature
-    # the model: the design's, if it has parameters for these ions; else the best that does
-    info = get_model(method.model)
-    opts = Options()
-    model_note = ""
-    if missing_for(info, tuple(ions), opts):
-        finite_i = i_val[valid & np.isfinite(i_val)]
-        i_est = 0.5 * float((z**2) @ isa) * r / (1 + r) / rho_w + (float(finite_i.max()) if finite_i.size else 0.0)
-        nm, why = select_model(tuple(ions), i_est, opts)
-        model_note = f" (design model {info.name} lacks parameters for the batch's ions; using {nm})"
-        info = MODELS[nm]
-    vol = np.array([i.volume if i.volume is not None else np.nan for i in ions])
-    use_water = bool(np.any(np.isnan(vol)))
-    vol = np.nan_to_num(vol)
+    choice, model_note = _batch_model(method, tuple(ions), isa, r, rho_w)
 
     def lg_of(c):
-        w = np.full(c.shape[1], rho_w) if use_water else rho_w * (1 - vol @ c / 1000.0)
-        m = c / w
-        ionic = 0.5 * (z**2) @ m
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", ValidityRangeWarning)
-            lg, _ = log10_gamma(info, Batch(tuple(names), tuple(ions), z, m, np.full(m.shape[1], t), ionic), opts)
-        return lg[names.index(an.name)], ionic
+        w = water_per_litre(ions, t, molar=c, density=method.density)
+        b = Batch.of(tuple(ions), c / w, t)
+        return log10_gamma(choice, b)[names.index(an.name)], b.ionic
 
     std = np.array(method.standards)
     c_std = (stoich[:, None] * std[None, :] + r * isa[:, None]) / (1 + r)
@@ -603,9 +575,22 @@ def check_samples(
         error_percent=np.where(valid, (np.power(10.0, err[rows, idx] / slope) - 1) * 100, np.nan),
         dilutions=tuple(float(x) for x in dil),
         by_dilution={"treated_analyte": t_an, "treated_ionic_strength": t_I, "error_mv": err, "ok": good},
-        calibration_range=cal, envelope=method.envelope, model=info.name + model_note, unit=unit,
+        calibration_range=cal, envelope=method.envelope, model=choice.name + model_note, unit=unit,
         unit_factor=factor,
     )
+
+
+def _batch_model(method: Method, ions: tuple[Ion, ...], isa: np.ndarray, ratio: float, rho_w: float
+                 ) -> tuple[ModelChoice, str]:
+    """The design's model, reused as it is; a named fallback only when the batch brings ions it lacks."""
+    info = method.choice.info
+    opts = method.choice.options
+    lacking = info.needs(ions, opts) if opts.missing == "error" else []
+    if not lacking:
+        return method.choice, ""
+    m = (isa * ratio / (1 + ratio) / rho_w)[:, None]
+    alt = resolve_model(Batch.of(ions, m, method.temperature), "auto", options=opts)
+    return alt, f" (the design's model {info.name} lacks {'; '.join(lacking)} for the batch's ions; using {alt.name})"
 
 
 def _why_not(i, j, analyte, i_val, in_cal, in_env, in_err, in_lin, cal, env_hi, err, method, fu, unit, dil):

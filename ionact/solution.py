@@ -22,7 +22,8 @@ from functools import cached_property
 import numpy as np
 
 from . import water
-from .errors import InputError, MissingParameterError, warn_range
+from .density import check_density, solution_density, water_per_litre
+from .errors import InputError, warn_range
 from .references import cite
 from .species import Ion, Salt, resolve_ion
 from .units import MOLAL, MOLAR, Amount, parse_amount
@@ -122,14 +123,10 @@ class Solution:
             raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
         water._temperature(t, "solution")  # range warning / absolute-zero check
         shapes = [np.shape(a.value) for _, a in parts] + [t.shape]
-        dens = density
-        if dens is not None and not (isinstance(dens, str) and dens == "water"):
+        dens = check_density(density)
+        if dens is not None and not isinstance(dens, str):
             dens = np.asarray(dens, dtype=float)
-            if not np.all(np.isfinite(dens)) or np.any(dens <= 0.5) or np.any(dens > 3.0):
-                raise InputError(f"density {density!r} kg/L is outside 0.5–3 kg/L")
             shapes.append(dens.shape)
-        elif isinstance(dens, str) and dens != "water":
-            raise InputError(f"density {density!r} must be None, 'water' or a number in kg/L")
         try:
             shape = np.broadcast_shapes(*shapes)
         except ValueError:
@@ -170,37 +167,8 @@ class Solution:
         self._m = _readonly(self._m)
 
     @staticmethod
-    def _volumes(names, ions, amounts: np.ndarray) -> np.ndarray:
-        vol = []
-        for i, n in enumerate(names):
-            v = ions[n].volume
-            if v is None:
-                if np.any(amounts[i] > 0):
-                    raise MissingParameterError(
-                        f"no apparent molar volume for {n}: the density model cannot convert "
-                        "between mol/L and mol/kg; pass density=<kg/L> or density='water'"
-                    )
-                v = 0.0
-            vol.append(v)
-        return np.array(vol)
-
-    def _water_per_litre_mixed(self, names, ions, molal, molar, t, dens) -> np.ndarray:
-        rho_w = water._density(t) / 1000.0  # kg/L
-        if isinstance(dens, str):  # "water"
-            return np.broadcast_to(rho_w, molal.shape[1:])
-        if dens is None:
-            vol = self._volumes(names, ions, molal + molar)
-            sa = np.tensordot(vol, molal, axes=(0, 0)) / 1000.0
-            sb = np.tensordot(vol, molar, axes=(0, 0)) / 1000.0
-            w = rho_w * (1.0 - sb) / (1.0 + rho_w * sa)
-        else:
-            masses = np.array([ions[n].molar_mass for n in names])
-            sa = np.tensordot(masses, molal, axes=(0, 0)) / 1000.0
-            sb = np.tensordot(masses, molar, axes=(0, 0)) / 1000.0
-            w = (dens - sb) / (1.0 + sa)
-        if np.any(w <= 0):
-            raise InputError("the molar amounts exceed what a litre of solution can hold (water per litre ≤ 0)")
-        return w
+    def _water_per_litre_mixed(names, ions, molal, molar, t, dens) -> np.ndarray:
+        return water_per_litre([ions[n] for n in names], t, molal=molal, molar=molar, density=dens)
 
     def _imbalance(self) -> tuple[np.ndarray, np.ndarray]:
         cb = np.tensordot(self._z, self._m, axes=(0, 0)) if self._names else np.zeros(self.shape)
@@ -247,6 +215,65 @@ class Solution:
         m[k] = np.maximum(new, 0.0)
         self._m = m
         self._balanced = (ion.name, _readonly(add))
+
+    @classmethod
+    def from_arrays(cls, ions, molalities, temperature=25.0, *, density=None) -> Solution:
+        """A solution (or batch) from species and a molality array, without unit parsing.
+
+        Parameters
+        ----------
+        ions : sequence of str or Ion
+            The species, in the order of the first axis of ``molalities``.
+        molalities : array_like
+            mol/kg, shape (n_ions, *batch_shape); finite and ≥ 0.
+        temperature : float or array_like
+            °C, broadcast to the batch shape.
+        density : None, "water" or float
+            As for :class:`Solution`.
+
+        Raises
+        ------
+        InputError
+            Shapes that do not match, negative or non-finite molalities, duplicate species.
+
+        Examples
+        --------
+        >>> Solution.from_arrays(["Na+", "Cl-"], [[0.1, 0.2], [0.1, 0.2]]).ionic_strength
+        array([0.1, 0.2])
+        """
+        objs = [resolve_ion(i) for i in ions]
+        names = [o.name for o in objs]
+        if len(set(names)) != len(names):
+            raise InputError(f"species {names} are not all different")
+        m = np.asarray(molalities, dtype=float)
+        if m.ndim == 0 or m.shape[0] != len(objs):
+            raise InputError(f"molalities of shape {m.shape} do not match {len(objs)} species")
+        if not np.all(np.isfinite(m)) or np.any(m < 0):
+            raise InputError("molalities must be finite and ≥ 0 mol/kg")
+        t = np.asarray(temperature, dtype=float)
+        if not np.all(np.isfinite(t)):
+            raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
+        water._temperature(t, "solution")
+        try:
+            shape = np.broadcast_shapes(m.shape[1:], t.shape)
+        except ValueError:
+            raise InputError(f"molalities {m.shape} and temperature {t.shape} do not broadcast") from None
+        dens = check_density(density)
+        if dens is not None and not isinstance(dens, str):
+            dens = _readonly(np.broadcast_to(dens, shape))
+        return cls._from_arrays(names, {o.name: o for o in objs}, np.broadcast_to(m, (len(objs), *shape)),
+                                np.broadcast_to(t, shape), dens)
+
+    @classmethod
+    def from_parts(cls, parts, temperature=25.0, *, balance: str | None = None,
+                   charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE, density=None) -> Solution:
+        """A solution from (Ion, Amount) parts, mixing molal and molar amounts through the density model.
+
+        The same ion may appear in several parts; its amounts add.
+        """
+        obj = cls.__new__(cls)
+        obj._build(list(parts), temperature, balance, charge_tolerance, density, check_duplicates=False)
+        return obj
 
     @classmethod
     def _from_arrays(cls, names, ions, m, t, density) -> Solution:
@@ -301,9 +328,8 @@ class Solution:
         for key, value in (extra or {}).items():
             ion = resolve_ion(key)
             parts.append((ion, parse_amount(value, ion, default_basis=basis)))
-        obj = cls.__new__(cls)
-        obj._build(parts, temperature, balance, charge_tolerance, density, check_duplicates=False)
-        return obj
+        return cls.from_parts(parts, temperature, balance=balance, charge_tolerance=charge_tolerance,
+                              density=density)
 
     @classmethod
     def from_ionic_strength(cls, ionic_strength, salt: str = "NaCl", temperature=25.0) -> Solution:
@@ -405,15 +431,8 @@ class Solution:
 
     @cached_property
     def _water_per_litre(self) -> np.ndarray:
-        rho_w = water._density(self._t) / 1000.0
-        if isinstance(self._density, str):
-            return np.broadcast_to(rho_w, self.shape)
-        if self._density is None:
-            vol = self._volumes(self._names, self._ions, self._m)
-            s = np.tensordot(vol, self._m, axes=(0, 0)) / 1000.0 if self._names else 0.0
-            return rho_w / (1.0 + rho_w * s)
-        s = np.tensordot(self._masses, self._m, axes=(0, 0)) / 1000.0 if self._names else 0.0
-        return self._density / (1.0 + s)
+        ions = [self._ions[n] for n in self._names]
+        return water_per_litre(ions, self._t, molal=self._m, density=self._density)
 
     @property
     def water_per_litre(self):
@@ -423,9 +442,8 @@ class Solution:
     @property
     def density(self):
         """Solution density in kg/L (from the model, the given density, or water)."""
-        w = self._water_per_litre
-        s = np.tensordot(self._masses, self._m, axes=(0, 0)) / 1000.0 if self._names else 0.0
-        return _out(w * (1.0 + s))
+        return _out(solution_density([self._ions[n] for n in self._names], self._t, self._m,
+                                     self._water_per_litre))
 
     @property
     def molarities(self) -> dict[str, float | np.ndarray]:

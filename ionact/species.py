@@ -10,8 +10,11 @@ from __future__ import annotations
 
 import math
 import re
+from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import lru_cache
+
+import numpy as np
 
 from .errors import InputError, UnknownSpeciesError
 from .tables import IonRecord, SaltRecord, canonical_name, ion_table, salt_table
@@ -110,6 +113,9 @@ class Ion:
         Truesdell–Jones a (Å) and b (kg/mol), where tabulated.
     volume : float or None
         Apparent molar volume at infinite dilution, cm³/mol (V°(H+) = 0), where tabulated.
+    masson : float or None
+        S of the concentration dependence V = V° + S √I_c (cm³ L^½ mol^-3/2), where fitted;
+        see :mod:`ionact.density`.
     tabulated : bool
         Whether the ion is in ``ionact/data/ions.csv``.
 
@@ -131,11 +137,23 @@ class Ion:
     tj_b: float | None = None
     volume: float | None = None
     tabulated: bool = False
+    masson: float | None = None
 
     def __post_init__(self) -> None:
-        if not isinstance(self.charge, int) or abs(self.charge) > _MAX_CHARGE:
-            raise InputError(f"ion charge {self.charge!r} is outside -{_MAX_CHARGE}..+{_MAX_CHARGE}")
-        if not (self.molar_mass > 0 and math.isfinite(self.molar_mass)):
+        if isinstance(self.charge, np.integer):
+            object.__setattr__(self, "charge", int(self.charge))
+        if isinstance(self.charge, bool) or not isinstance(self.charge, int) or abs(self.charge) > _MAX_CHARGE:
+            raise InputError(f"ion charge {self.charge!r} must be an integer in -{_MAX_CHARGE}..+{_MAX_CHARGE}")
+        if not isinstance(self.formula, str) or not self.formula:
+            raise InputError(f"ion formula {self.formula!r} must be non-empty text")
+        for attr in ("molar_mass", "size", "volume", "masson"):
+            v = getattr(self, attr)
+            if v is None:
+                continue
+            if isinstance(v, bool) or not isinstance(v, int | float | np.floating | np.integer):
+                raise InputError(f"ion {attr} {v!r} must be a number")
+            object.__setattr__(self, attr, float(v))
+        if self.molar_mass is None or not (self.molar_mass > 0 and math.isfinite(self.molar_mass)):
             raise InputError(f"molar mass {self.molar_mass!r} g/mol must be positive and finite")
         if self.size is not None and not (0 < self.size < 20):
             raise InputError(f"ion size {self.size!r} Å is outside (0, 20) Å")
@@ -147,6 +165,44 @@ class Ion:
 
     def __str__(self) -> str:
         return self.name
+
+    def to_dict(self) -> dict[str, object]:
+        """The species as plain data (what a design file stores for species outside the tables)."""
+        return {"formula": self.formula, "charge": self.charge, "molar_mass": self.molar_mass, "size": self.size,
+                "volume": self.volume, "masson": self.masson}
+
+    @classmethod
+    def from_dict(cls, d: Mapping[str, object]) -> Ion:
+        """An ion from :meth:`to_dict` output; a tabulated ion comes back with its table values.
+
+        Raises
+        ------
+        InputError
+            A missing or malformed field.
+        """
+        if not isinstance(d, Mapping):
+            raise InputError(f"an ion must be a mapping, got {type(d).__name__}")
+        try:
+            formula, charge = d["formula"], d["charge"]
+        except KeyError as exc:
+            raise InputError(f"an ion record lacks {exc}") from None
+        if not isinstance(formula, str) or isinstance(charge, bool) or not isinstance(charge, int):
+            raise InputError(f"ion record {dict(d)!r} needs a formula (text) and an integer charge")
+        name = canonical_name(formula, charge)
+        if name in ion_table():
+            return Ion.parse(name)
+
+        def opt(key: str) -> float | None:
+            v = d.get(key)
+            if v is None:
+                return None
+            if isinstance(v, bool) or not isinstance(v, int | float):
+                raise InputError(f"ion {name}: {key} {v!r} is not a number")
+            return float(v)
+
+        mass = opt("molar_mass")
+        return cls(formula=formula, charge=charge, molar_mass=mass if mass is not None else _formula_mass(formula),
+                   size=opt("size"), volume=opt("volume"), masson=opt("masson"))
 
     @property
     def pretty(self) -> str:
@@ -226,6 +282,7 @@ def _parse_ion_cached(text: str) -> Ion:
         tj_b=rec.tj_b,
         volume=rec.volume,
         tabulated=True,
+        masson=rec.masson,
     )
 
 

@@ -7,9 +7,12 @@ resolves to a full citation in :mod:`ionact.references`.
 from __future__ import annotations
 
 import csv
+import re
 from dataclasses import dataclass
 from functools import lru_cache
 from importlib import resources
+
+from .constants import PARAMETER_WINDOW
 
 __all__ = [
     "IonRecord",
@@ -23,6 +26,9 @@ __all__ = [
     "canonical_name",
     "acid_table",
     "ksp_table",
+    "ReagentRecord",
+    "reagent_table",
+    "charge_of_name",
 ]
 
 
@@ -60,6 +66,7 @@ class IonRecord:
     tj_a: float | None  # Truesdell–Jones a, Å
     tj_b: float | None  # Truesdell–Jones b, kg/mol
     volume: float | None  # apparent molar volume at infinite dilution, cm³/mol
+    masson: float | None  # S of V = V° + S √I_c, cm³ L^½ mol^-3/2
     source: tuple[str, ...]
 
     @property
@@ -94,6 +101,7 @@ class PitzerBinary:
     dbeta1_dT: float | None
     dcphi_dT: float | None
     max_molality: float
+    t_range: tuple[float, float]  # °C over which the parameters (with any derivatives) hold
     source: tuple[str, ...]
 
 
@@ -114,6 +122,7 @@ def ion_table() -> dict[str, IonRecord]:
             tj_a=_opt(r["tj_a_angstrom"]),
             tj_b=_opt(r["tj_b_kg_per_mol"]),
             volume=_opt(r["volume_cm3_per_mol"]),
+            masson=_opt(r["masson_cm3_l05_per_mol15"]),
             source=_src(r["source"]),
         )
         out[rec.name] = rec
@@ -166,23 +175,73 @@ def pitzer_binary_table() -> dict[tuple[str, str], PitzerBinary]:
             dbeta1_dT=_opt(r["dbeta1_dT"]),
             dcphi_dT=_opt(r["dcphi_dT"]),
             max_molality=float(r["max_molality"]),
+            t_range=((float(r["t_min_C"]), float(r["t_max_C"])) if r["t_min_C"].strip() else PARAMETER_WINDOW),
             source=_src(r["source"]),
         )
         out[(rec.cation, rec.anion)] = rec
     return out
 
 
+_RE_CHARGE = re.compile(r"(?:\^(\d+))?([+-])$")
+
+
+def charge_of_name(name: str) -> int:
+    """The charge written in a canonical name (``"SO4^2-"`` → −2, ``"NH3"`` → 0)."""
+    m = _RE_CHARGE.search(name)
+    if m is None:
+        return 0
+    n = int(m[1]) if m[1] else 1
+    return n if m[2] == "+" else -n
+
+
 @lru_cache(maxsize=1)
 def pitzer_mixing_table() -> tuple[dict[frozenset[str], float], dict[tuple[frozenset[str], str], float]]:
-    """θ keyed by the unordered like-sign pair; ψ keyed by (like-sign pair, third ion)."""
+    """θ keyed by the unordered like-sign pair; ψ keyed by (like-sign pair, ion of the other sign).
+
+    A ψ row may name its three ions in any order: the two of the same sign form the pair.
+    A row that does not describe a like-sign pair (θ) or such a pair with one ion of the
+    other sign (ψ) is an error at load time, so no row can sit in the table unreachable.
+    """
     theta: dict[frozenset[str], float] = {}
     psi: dict[tuple[frozenset[str], str], float] = {}
-    for r in _rows("pitzer_mixing.csv"):
+    for k, r in enumerate(_rows("pitzer_mixing.csv"), start=2):
+        ions = [r["ion1"], r["ion2"]] + ([r["ion3"]] if r["ion3"].strip() else [])
+        zs = [charge_of_name(i) for i in ions]
         if r["kind"] == "theta":
-            theta[frozenset((r["ion1"], r["ion2"]))] = float(r["value"])
+            if len(ions) != 2 or zs[0] * zs[1] <= 0 or ions[0] == ions[1]:
+                raise ValueError(f"pitzer_mixing.csv line {k}: θ needs two different ions of the same sign")
+            theta[frozenset(ions)] = float(r["value"])
+        elif r["kind"] == "psi":
+            pos = [i for i, z in zip(ions, zs, strict=True) if z > 0]
+            neg = [i for i, z in zip(ions, zs, strict=True) if z < 0]
+            if len(ions) != 3 or {len(pos), len(neg)} != {1, 2} or len(set(ions)) != 3:
+                raise ValueError(f"pitzer_mixing.csv line {k}: ψ needs two ions of one sign and one of the other")
+            pair, third = (pos, neg[0]) if len(pos) == 2 else (neg, pos[0])
+            psi[(frozenset(pair), third)] = float(r["value"])
         else:
-            psi[(frozenset((r["ion1"], r["ion2"])), r["ion3"])] = float(r["value"])
+            raise ValueError(f"pitzer_mixing.csv line {k}: kind {r['kind']!r} is not theta or psi")
     return theta, psi
+
+
+@dataclass(frozen=True, slots=True)
+class ReagentRecord:
+    """A neutral reagent added to stocks as such (not as a salt): its form and hazards."""
+
+    formula: str
+    liquid: bool
+    density: float | None  # g/mL at 25 °C for liquids
+    hazards: tuple[str, ...]
+    source: tuple[str, ...]
+
+
+@lru_cache(maxsize=1)
+def reagent_table() -> dict[str, ReagentRecord]:
+    """Neutral reagents keyed by formula (``reagents.csv``)."""
+    out = {}
+    for r in _rows("reagents.csv"):
+        out[r["formula"]] = ReagentRecord(r["formula"], r["form"] == "liquid", _opt(r["density_g_per_ml"]),
+                                          tuple(h for h in r["hazards"].split(";") if h), _src(r["source"]))
+    return out
 
 
 @lru_cache(maxsize=1)

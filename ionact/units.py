@@ -18,7 +18,7 @@ import numpy as np
 from .errors import InputError, UnitAssumptionWarning, UnitError, caller_stacklevel
 from .species import Ion
 
-__all__ = ["registry", "Amount", "parse_amount", "convert_amount", "format_amount"]
+__all__ = ["registry", "Amount", "parse_amount", "convert_amount", "format_amount", "parse_scalar"]
 
 MOLAL = "molal"
 MOLAR = "molar"
@@ -275,6 +275,36 @@ def convert_amount(value, from_basis: str, unit: str, ion: Ion | str | None = No
         v = v * abs(ion_obj.charge)
     v = v * scale
     return float(v) if v.ndim == 0 else v
+
+
+def parse_scalar(value: object, unit: str, what: str) -> float:
+    """A finite number in ``unit``: a bare number is taken in ``unit``; a string or pint
+    Quantity is converted into it ("0.85 mS/cm" for unit "uS/cm" gives 850).
+
+    Raises
+    ------
+    InputError
+        Not a finite number (booleans included).
+    UnitError
+        A unit that is unknown or cannot be converted to ``unit``.
+    """
+    if isinstance(value, bool):
+        raise InputError(f"{what} {value!r} is not a number")
+    if isinstance(value, str) or (hasattr(value, "magnitude") and hasattr(value, "units")):
+        ureg = registry()
+        try:
+            q = ureg.Quantity(value) if isinstance(value, str) else value
+            v = float(q.to(unit).magnitude)
+        except Exception:
+            raise UnitError(f"{what} {value!r} cannot be read in {unit}") from None
+    else:
+        try:
+            v = float(value)  # type: ignore[arg-type]
+        except (TypeError, ValueError):
+            raise InputError(f"{what} {value!r} is not a number") from None
+    if not math.isfinite(v):
+        raise InputError(f"{what} {value!r} is not finite")
+    return v
 
 
 def format_amount(value: float, unit: str) -> str:

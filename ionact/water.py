@@ -147,6 +147,26 @@ def _dh_b(t: np.ndarray) -> np.ndarray:
     return _bjerrum_kappa(t)[1] * 1e-10
 
 
+def _once_per_temperature(fn, t: np.ndarray) -> np.ndarray:
+    """Evaluate ``fn`` once when every temperature in ``t`` is the same (the usual batch)."""
+    t = np.asarray(t, dtype=float)
+    if t.size > 1:
+        first = t.flat[0]
+        if np.all(t == first):
+            return np.full(t.shape, float(fn(np.asarray(first))))
+    return np.asarray(fn(t), dtype=float)
+
+
+def dh_a_array(t: np.ndarray) -> np.ndarray:
+    """Debye–Hückel A for an array of temperatures (°C), no range checks (the models' hot path)."""
+    return _once_per_temperature(_dh_a, t)
+
+
+def dh_b_array(t: np.ndarray) -> np.ndarray:
+    """Debye–Hückel B (Å⁻¹) for an array of temperatures (°C), no range checks."""
+    return _once_per_temperature(_dh_b, t)
+
+
 def debye_huckel_a(temperature=25.0):
     """Debye–Hückel A on the log10 basis, kg^½ mol^-½.
 

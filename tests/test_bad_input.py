@@ -27,12 +27,12 @@ from ionact.method import load_method
 from ionact.samples import check_samples, read_samples_csv
 from ionact.units import parse_amount
 
-JOB = dict(sample_ionic_strength=(0, 0.01), analyte_range=(1e-5, 1e-3), tolerance_mv=0.5, solve="none",
-           model="davies")
+JOB = dict(samples=ia.SamplePopulation(ionic_strength=(0, 0.01)), analyte_range=(1e-5, 1e-3),
+           budget=ia.Budget(mv=0.5), solve="none", model="davies")
 
 
 def _design(**kw):
-    args = dict(analyte="F-", salts={"NaCl": 1.0}, **JOB)
+    args = dict(analyte="F-", stock={"NaCl": 1.0}, **JOB)
     args.update(kw)
     return ia.design_adjuster(**args)
 
@@ -101,12 +101,13 @@ API_CASES = [
     ("density-missing-volume", lambda: ia.Solution.from_salts({"CuCl2": "0.1 mol/L"}), MissingParameterError,
      "Cu^2+"),
     # infeasible designs and saturation
-    ("design-infeasible", lambda: _design(sample_ionic_strength=(0, 0.5), tolerance_mv=0.001, solve="stock"),
-     InfeasibleDesignError, "0.001"),
-    ("design-above-saturation", lambda: _design(salts={"KNO3": 5.0}), InfeasibleDesignError, "KNO3"),
-    ("design-tolerance-zero", lambda: _design(tolerance_mv=0), InputError, "tolerance_mv 0"),
+    ("design-infeasible", lambda: _design(samples=ia.SamplePopulation(ionic_strength=(0, 0.5)),
+                                          budget=ia.Budget(mv=0.001), solve="stock"), InfeasibleDesignError, "0.001"),
+    ("design-above-saturation", lambda: _design(stock={"KNO3": 5.0}), InfeasibleDesignError, "KNO3"),
+    ("design-budget-zero", lambda: ia.Budget(mv=0), InputError, "budget mv 0"),
     ("design-ratio-negative", lambda: _design(volume_ratio=-1), InputError, "volume_ratio -1"),
-    ("design-analyte-in-isa", lambda: _design(salts={"NaF": 1.0}), InputError, "F-"),
+    ("design-ratio-huge", lambda: _design(volume_ratio=1e300), InputError, "volume_ratio 1e+300"),
+    ("design-analyte-in-isa", lambda: _design(stock={"NaF": 1.0}), InputError, "F-"),
     ("design-ratio-text", lambda: _design(volume_ratio="lots"), InputError, "lots"),
     ("design-margin-text", lambda: _design(solubility_margin="x"), InputError, "'x'"),
     ("buffer-ph", lambda: ia.Buffer("CH3COOH", "CH3COONa", pH=15), InputError, "15"),

@@ -122,3 +122,40 @@ def test_check_command(capsys, tmp_path):
 def test_neutral_species_on_the_command_line(capsys):
     rc, out, _ = run(capsys, "gamma", "NaCl=0.1", "CH3COOH=0.05", "--model", "davies", "--json")
     assert rc == 0 and json.loads(out)["gamma"]["CH3COOH"] == pytest.approx(10 ** (0.1 * 0.1))
+
+
+def test_design_exit_status_follows_the_checks(capsys, tmp_path):
+    # 0: no check failed; 1: a check failed (the report still printed); 2: bad input
+    method = tmp_path / "m.toml"
+    method.write_text("""analyte = "NO3-"
+model = "davies"
+[budget]
+mv = 0.5
+[analyte_range]
+low = 1e-5
+high = 1e-3
+[samples]
+ionic_strength = [0, 0.01]
+[adjuster]
+solve = "none"
+[adjuster.stock]
+KCl = 2.0
+[electrode.selectivity]
+"Cl-" = 0.5
+""")
+    rc, out, _ = run(capsys, "design", str(method))
+    assert rc == 1 and "FAILED" in out and "Cautions" in out
+    method.write_text(method.read_text().replace('"Cl-" = 0.5', '"Cl-" = 1e-9'))
+    rc, out, _ = run(capsys, "design", str(method))
+    assert rc == 0
+    rc, out, _ = run(capsys, "design", "--help-keys")
+    assert rc == 0 and "[species.NAME]" in out and "role" in out
+
+
+def test_method_file_custom_component(capsys, tmp_path):
+    # a complexing agent declared in the method file and kept as given (role "fixed")
+    rc, out, _ = run(capsys, "design", "--example", "fluoride_buffered", "--json")
+    data = json.loads(out)
+    line = next(r for r in data["recipe"] if r["component"] == "Na4CDTA")
+    assert rc == 0 and line["role"] == "fixed" and line["mol_per_l"] == pytest.approx(0.01)
+    assert "C14H18N2O8^4-" in data["species"]

@@ -16,6 +16,11 @@ def test_notebook_runs(path):
     client.execute()
     errors = [o for c in nb.cells if c.cell_type == "code" for o in c.get("outputs", []) if o.output_type == "error"]
     assert not errors
+    # a cell that ends with a figure shows it, once
+    for c in nb.cells:
+        if c.cell_type == "code" and c.source.strip().splitlines()[-1].endswith(".plot()"):
+            images = [o for o in c.outputs if "image/png" in o.get("data", {})]
+            assert len(images) == 1, c.source
 
 
 def test_there_are_notebooks():

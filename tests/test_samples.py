@@ -26,8 +26,8 @@ from ionact.samples import (
 def design():
     # nitrate method: 2 mol/L (NH4)2SO4 at 2 mL per 100 mL, samples proven up to I = 0.05,
     # standards 1e-5 … 1e-3 mol/L, budget 1 mV, Davies (see test_adjuster for the hand calculation)
-    return ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, sample_ionic_strength=(0.0, 0.05),
-                              analyte_range=(1e-5, 1e-3), volume_ratio=0.02, tolerance_mv=1.0, solve="none",
+    return ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, samples=ia.SamplePopulation(ionic_strength=(0.0, 0.05)),
+                              analyte_range=(1e-5, 1e-3), volume_ratio=0.02, budget=ia.Budget(mv=1.0), solve="none",
                               model="davies")
 
 

@@ -24,15 +24,17 @@ from functools import lru_cache
 
 import numpy as np
 
-from ..errors import MissingParameterError, warn_range
+from ..constants import PARAMETER_WINDOW
+from ..errors import MissingParameterError
 from ..tables import pitzer_binary_table, pitzer_mixing_table
 
-__all__ = ["PitzerSet", "pitzer_set", "log_gamma", "osmotic", "binary_log_mean", "j_function"]
+__all__ = ["PitzerSet", "pitzer_set", "log_gamma", "osmotic", "binary_log_mean", "j_function",
+           "pair_shares", "pair_ionic_strength_limits", "PITZER_B", "PITZER_MAX_IONIC_STRENGTH"]
 
 PITZER_B = 1.2
+PITZER_MAX_IONIC_STRENGTH = 6.0  # mol/kg: for mixtures whose pairs state no limit of their own
 # Pitzer (1975) approximation J(x) = x / (4 + C1 x^-C2 exp(-C3 x^C4)) (from memory)
 _JC = (4.581, 0.7237, 0.0120, 0.528)
-TEMPERATURE_WINDOW = 5.0  # °C either side of 25 °C without derivatives
 
 
 def j_function(x):
@@ -93,6 +95,7 @@ class PitzerSet:
     dbeta1: np.ndarray
     dcphi: np.ndarray
     max_molality: np.ndarray
+    t_range: np.ndarray  # (nc, na, 2) °C
     theta_c: np.ndarray  # (nc, nc)
     theta_a: np.ndarray  # (na, na)
     psi_cca: np.ndarray  # (nc, nc, na)
@@ -114,6 +117,8 @@ def pitzer_set(cations: tuple[str, ...], anions: tuple[str, ...], cation_charges
     nc, na = len(cations), len(anions)
     arrs = {k: np.zeros((nc, na)) for k in ("beta0", "beta1", "beta2", "cphi", "alpha1", "alpha2", "maxm")}
     ders = {k: np.full((nc, na), np.nan) for k in ("dbeta0", "dbeta1", "dcphi")}
+    t_range = np.empty((nc, na, 2))
+    t_range[...] = PARAMETER_WINDOW
     missing_pairs = []
     for i, c in enumerate(cations):
         for j, a in enumerate(anions):
@@ -126,6 +131,7 @@ def pitzer_set(cations: tuple[str, ...], anions: tuple[str, ...], cation_charges
             for k in ("beta0", "beta1", "beta2", "cphi", "alpha1", "alpha2"):
                 arrs[k][i, j] = getattr(rec, k)
             arrs["maxm"][i, j] = rec.max_molality
+            t_range[i, j] = rec.t_range
             for k, attr in (("dbeta0", "dbeta0_dT"), ("dbeta1", "dbeta1_dT"), ("dcphi", "dcphi_dT")):
                 v = getattr(rec, attr)
                 if v is not None:
@@ -178,6 +184,7 @@ def pitzer_set(cations: tuple[str, ...], anions: tuple[str, ...], cation_charges
         dbeta1=ders["dbeta1"],
         dcphi=ders["dcphi"],
         max_molality=arrs["maxm"],
+        t_range=t_range,
         theta_c=like(cations, cation_charges),
         theta_a=like(anions, anion_charges),
         psi_cca=triple(cations, anions),
@@ -187,28 +194,45 @@ def pitzer_set(cations: tuple[str, ...], anions: tuple[str, ...], cation_charges
     )
 
 
-def _at_temperature(p: PitzerSet, t: np.ndarray):
-    """β0, β1, Cφ at temperature t (N,), shapes (nc, na, N) or (nc, na, 1)."""
+def _at_temperature(p: PitzerSet, t: np.ndarray) -> list[np.ndarray]:
+    """β0, β1, Cφ at temperature t (N,), shapes (nc, na, N) or (nc, na, 1).
+
+    Pairs with tabulated first derivatives are extrapolated linearly from 25 °C; the others
+    keep their 25 °C values. Where that is valid is the business of the range check
+    (:func:`ionact.models.registry` reports it), not of this kernel.
+    """
     dt = t - 25.0
-    far = np.abs(dt) > TEMPERATURE_WINDOW
     out = []
-    lacking = False
     for base, der in ((p.beta0, p.dbeta0), (p.beta1, p.dbeta1), (p.cphi, p.dcphi)):
         has = np.isfinite(der)
-        if not np.all(has):
-            lacking = True
         if np.any(has) and np.any(dt != 0):
             out.append(base[..., None] + np.where(has, der, 0.0)[..., None] * dt[None, None, :])
         else:
             out.append(base[..., None])
-    if np.any(far) and (lacking or np.any(p.theta_c) or np.any(p.theta_a)):
-        bad = float(t[far][0])
-        warn_range(
-            f"model pitzer: parameters are 25 °C values (temperature derivatives only for some "
-            f"pairs); temperature {bad:g} °C is outside 20–30 °C",
-            stacklevel=5,
-        )
     return out
+
+
+def pair_ionic_strength_limits(p: PitzerSet) -> np.ndarray:
+    """Ionic strength (nc, na) at which each pure salt reaches its fitted molality limit.
+
+    A salt M_νM X_νX at molality m has I = m·½(ν_M z_M² + ν_X z_X²); untabulated pairs
+    have no limit (inf).
+    """
+    zc, za = p.zc[:, None], p.za[None, :]
+    g = np.gcd(zc.astype(int), za.astype(int))
+    nu_c, nu_a = za / g, zc / g
+    w = 0.5 * (nu_c * zc**2 + nu_a * za**2)
+    return np.asarray(p.max_molality * w)
+
+
+def pair_shares(p: PitzerSet, mc: np.ndarray, ma: np.ndarray) -> np.ndarray:
+    """Equivalent-fraction share y_c·x_a (nc, na, N) of each cation–anion pair in each sample."""
+    ec = p.zc[:, None] * mc
+    ea = p.za[:, None] * ma
+    with np.errstate(invalid="ignore", divide="ignore"):
+        y = np.where(ec.sum(axis=0) > 0, ec / ec.sum(axis=0), 0.0)
+        x = np.where(ea.sum(axis=0) > 0, ea / ea.sum(axis=0), 0.0)
+    return np.asarray(y[:, None, :] * x[None, :, :])
 
 
 def _etheta(z: np.ndarray, aphi: np.ndarray, ionic: np.ndarray):

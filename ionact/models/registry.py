@@ -1,28 +1,45 @@
-"""The model registry: names, validity ranges, parameter coverage and array kernels.
+"""The model registry: names, validity checks, parameter coverage and array kernels.
 
 Every kernel takes a :class:`Batch` (ions, charges, molalities (n, N), temperature (N,),
-ionic strength (N,)) and :class:`Options`, and returns log10 γ of shape (n, N) plus
-notes. Nothing here loops over samples.
+ionic strength (N,)) and :class:`Options`, and returns log10 γ of shape (n, N) plus notes.
+Each model also says what parameters it lacks for a set of ions (``needs``) and where a
+batch leaves its validity range (``violations``: ionic strength, per-salt molality limits,
+temperature). Nothing here warns or loops over samples: the resolver
+(:mod:`ionact.models.resolver`) turns violations into warnings or notes.
 """
 
 from __future__ import annotations
 
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
 from .. import water
+from ..constants import LN10, PARAMETER_WINDOW
 from ..errors import InputError, MissingParameterError, UnknownSpeciesError
 from ..species import Ion
 from . import debye_huckel as dh
 from . import pitzer as pz
 from . import sit as sit_mod
 
-__all__ = ["Batch", "Options", "ModelInfo", "MODELS", "get_model", "model_names", "log10_gamma", "missing_for"]
+__all__ = [
+    "Batch",
+    "Options",
+    "Violation",
+    "make_options",
+    "ModelInfo",
+    "MODELS",
+    "get_model",
+    "model_names",
+    "MISSING_POLICIES",
+    "PAIR_SHARE_FOR_LIMITS",
+]
 
-LN10 = math.log(10.0)
+MISSING_POLICIES = ("error", "zero")
+PAIR_SHARE_FOR_LIMITS = 0.05  # a Pitzer pair's limits apply when it holds ≥ 5 % of the equivalents
 
 
 @dataclass(frozen=True)
@@ -36,18 +53,111 @@ class Batch:
     t: np.ndarray  # (N,) °C
     ionic: np.ndarray  # (N,) mol/kg
 
+    @classmethod
+    def of(cls, ions: tuple[Ion, ...], m: np.ndarray, t: np.ndarray | float) -> Batch:
+        """A batch from ions and molalities (n, N); the ionic strength is computed here."""
+        z = np.array([i.charge for i in ions], dtype=float)
+        m = np.asarray(m, dtype=float)
+        ionic = 0.5 * (z**2) @ m if len(ions) else np.zeros(m.shape[1:])
+        tt = np.broadcast_to(np.asarray(t, dtype=float), ionic.shape)
+        return cls(tuple(i.name for i in ions), tuple(ions), z, m, tt, ionic)
+
 
 @dataclass(frozen=True)
 class Options:
-    """Model options shared by all kernels (see :func:`ionact.activity_coefficients`)."""
+    """Model options shared by all kernels (see :func:`ionact.activity_coefficients`).
 
-    sizes: dict[str, float] = field(default_factory=dict)
+    Mapping-like options are stored as sorted tuples of pairs, so an ``Options`` is
+    immutable, hashable and compares by value.
+    """
+
+    sizes: tuple[tuple[str, float], ...] = ()
     davies_coefficient: float = dh.DAVIES_COEFFICIENT
     bdot: float = dh.B_DOT
-    setschenow: dict[str, float] = field(default_factory=dict)
+    setschenow: tuple[tuple[str, float], ...] = ()
     setschenow_default: float = dh.SETSCHENOW_DEFAULT
     missing: str = "error"
     unsymmetrical: bool = True
+
+    def size_of(self, ion: Ion) -> float | None:
+        """The ion-size parameter å (Å): the caller's override, else Kielland's value."""
+        return dict(self.sizes).get(ion.name, ion.size)
+
+    def to_dict(self) -> dict[str, Any]:
+        return {"sizes": dict(self.sizes), "davies_coefficient": self.davies_coefficient, "bdot": self.bdot,
+                "setschenow": dict(self.setschenow), "setschenow_default": self.setschenow_default,
+                "missing": self.missing, "unsymmetrical": self.unsymmetrical}
+
+    @classmethod
+    def from_dict(cls, d: Mapping[str, Any]) -> Options:
+        return make_options(sizes=d.get("sizes"), davies_coefficient=d.get("davies_coefficient", 0.3),
+                            bdot=d.get("bdot", dh.B_DOT), setschenow=d.get("setschenow") or None,
+                            setschenow_default=d.get("setschenow_default", dh.SETSCHENOW_DEFAULT),
+                            missing=d.get("missing", "error"), unsymmetrical=d.get("unsymmetrical", True))
+
+
+def _finite(value: object, what: str, lo: float, hi: float) -> float:
+    if isinstance(value, bool) or not isinstance(value, int | float | np.floating | np.integer):
+        raise InputError(f"{what} {value!r} is not a number; allowed: {lo:g}–{hi:g}")
+    v = float(value)
+    if not (math.isfinite(v) and lo <= v <= hi):
+        raise InputError(f"{what} {value!r} is outside the allowed range {lo:g}–{hi:g}")
+    return v
+
+
+def make_options(
+    sizes: Mapping[str, float] | None = None,
+    davies_coefficient: float = dh.DAVIES_COEFFICIENT,
+    bdot: float = dh.B_DOT,
+    setschenow: float | Mapping[str, float] | None = None,
+    setschenow_default: float = dh.SETSCHENOW_DEFAULT,
+    missing: str = "error",
+    unsymmetrical: bool = True,
+) -> Options:
+    """Validated :class:`Options` from the keyword arguments the public functions take.
+
+    Raises
+    ------
+    InputError
+        A value outside its range (sizes 0–20 Å, Davies coefficient 0–1, …) or an unknown
+        missing-parameter policy.
+    """
+    if missing not in MISSING_POLICIES:
+        raise InputError(f"missing={missing!r}: allowed 'error', 'zero', or a fallback model name")
+    sz = {}
+    for k, v in (sizes or {}).items():
+        name = Ion.parse(k).name
+        sz[name] = _finite(v, f"size of {name} (Å)", 1e-9, 20.0)
+    if isinstance(setschenow, int | float) and not isinstance(setschenow, bool):
+        ks: dict[str, float] = {}
+        kd = _finite(setschenow, "setschenow (kg/mol)", -2.0, 2.0)
+    else:
+        ks = {Ion.parse(k).name: _finite(v, f"setschenow of {k} (kg/mol)", -2.0, 2.0)
+              for k, v in (setschenow or {}).items()}
+        kd = _finite(setschenow_default, "setschenow_default (kg/mol)", -2.0, 2.0)
+    if not isinstance(unsymmetrical, bool):
+        raise InputError(f"unsymmetrical {unsymmetrical!r} must be True or False")
+    return Options(sizes=tuple(sorted(sz.items())),
+                   davies_coefficient=_finite(davies_coefficient, "davies_coefficient", 0.0, 1.0),
+                   bdot=_finite(bdot, "bdot (kg/mol)", -1.0, 1.0), setschenow=tuple(sorted(ks.items())),
+                   setschenow_default=kd, missing=missing, unsymmetrical=unsymmetrical)
+
+
+@dataclass(frozen=True)
+class Violation:
+    """Where a batch leaves a model's validity: ``kind`` is "ionic-strength", "temperature"
+    or "association"; ``message`` names the model, the limit and the value."""
+
+    kind: str
+    message: str
+
+    def __str__(self) -> str:
+        return self.message
+
+
+Kernel = Callable[[Batch, Options], tuple[np.ndarray, list[str]]]
+Needs = Callable[[tuple[Ion, ...], Options], list[str]]
+Violations = Callable[[Batch, Options, float], list[Violation]]
 
 
 @dataclass(frozen=True)
@@ -60,19 +170,29 @@ class ModelInfo:
     rank: int  # higher = more accurate where it applies (used by model="auto")
     convention: str
     reference: str
-    kernel: Callable[[Batch, Options], tuple[np.ndarray, list[str]]] = field(repr=False)
-    needs: Callable[[tuple[Ion, ...], Options], list[str]] = field(repr=False)
+    kernel: Kernel = field(repr=False)
+    needs: Needs = field(repr=False)
     in_auto: bool = True
+    extra_violations: Violations | None = field(default=None, repr=False)
+
+    def violations(self, batch: Batch, options: Options) -> list[Violation]:
+        """Where this batch leaves the model's validity (ionic strength, salt limits, temperature)."""
+        finite = batch.ionic[np.isfinite(batch.ionic)]
+        imax = float(finite.max()) if finite.size else 0.0
+        if self.extra_violations is not None:
+            return self.extra_violations(batch, options, imax)
+        return _range(self.name, self.max_ionic_strength, imax)
 
 
-def _charged(ions):
+def _charged(ions: tuple[Ion, ...]) -> list[Ion]:
     return [i for i in ions if i.charge != 0]
 
 
 def _neutral_lg(b: Batch, o: Options, lg: np.ndarray, notes: list[str]) -> np.ndarray:
     neutral = b.z == 0
     if np.any(neutral):
-        ks = np.array([o.setschenow.get(n, o.setschenow_default) for n in b.names])
+        given = dict(o.setschenow)
+        ks = np.array([given.get(n, o.setschenow_default) for n in b.names])
         lg = np.where(neutral[:, None], ks[:, None] * b.ionic[None, :], lg)
         used = [n for n, is_n in zip(b.names, neutral, strict=True) if is_n]
         notes.append(
@@ -82,74 +202,12 @@ def _neutral_lg(b: Batch, o: Options, lg: np.ndarray, notes: list[str]) -> np.nd
     return lg
 
 
-def _sizes(b: Batch, o: Options, attr: str = "size") -> np.ndarray:
-    out = []
-    for ion in b.ions:
-        v = o.sizes.get(ion.name, getattr(ion, attr)) if attr == "size" else getattr(ion, attr)
-        if v is None:
-            v = 0.0 if (ion.charge == 0 or o.missing == "zero") else None
-        if v is None:
-            raise MissingParameterError(f"no {attr} parameter for {ion.name}")
-        out.append(v)
-    return np.array(out, dtype=float)
+def _lacking_sizes(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    return [i.name for i in _charged(ions) if o.size_of(i) is None]
 
 
-def _needs_size(ions, o: Options):
-    return [f"ion size å of {i.name}" for i in _charged(ions) if i.size is None and i.name not in o.sizes]
-
-
-def _needs_nothing(ions, o):
-    return []
-
-
-def _needs_tj(ions, o):
-    return [f"Truesdell–Jones a, b of {i.name}" for i in _charged(ions) if i.tj_a is None or i.tj_b is None]
-
-
-def _needs_sit(ions, o):
-    charged = _charged(ions)
-    try:
-        sit_mod.epsilon_matrix(tuple(i.name for i in charged), tuple(i.charge for i in charged))
-    except MissingParameterError as exc:
-        return [str(exc)]
-    return []
-
-
-def _needs_pitzer(ions, o):
-    cat = [i for i in ions if i.charge > 0]
-    an = [i for i in ions if i.charge < 0]
-    try:
-        pz.pitzer_set(tuple(i.name for i in cat), tuple(i.name for i in an),
-                      tuple(i.charge for i in cat), tuple(i.charge for i in an))
-    except MissingParameterError as exc:
-        return [str(exc)]
-    return []
-
-
-def _common(b: Batch):
-    z2 = (b.z**2)[:, None]
-    sq = np.sqrt(b.ionic)[None, :]
-    a = water._dh_a(b.t)[None, :]
-    return z2, sq, a
-
-
-def _k_limiting(b, o):
-    z2, sq, a = _common(b)
-    notes: list[str] = []
-    return _neutral_lg(b, o, dh._lg_limiting(z2, sq, a), notes), notes
-
-
-def _k_extended(b, o):
-    z2, sq, a = _common(b)
-    bb = water._dh_b(b.t)[None, :]
-    notes: list[str] = []
-    _check_sizes(b, o, notes)
-    size = _sizes(b, o)[:, None]
-    return _neutral_lg(b, o, dh._lg_extended(z2, sq, a, bb, size), notes), notes
-
-
-def _check_sizes(b, o, notes):
-    lacking = [i.name for i in _charged(b.ions) if i.size is None and i.name not in o.sizes]
+def _sizes(b: Batch, o: Options, notes: list[str]) -> np.ndarray:
+    lacking = _lacking_sizes(b.ions, o)
     if lacking:
         if o.missing != "zero":
             raise MissingParameterError(
@@ -157,26 +215,74 @@ def _check_sizes(b, o, notes):
                 + "; pass sizes={ion: Å}, use another model, or allow missing='zero'"
             )
         notes.append("ion size taken as zero (limiting law) for " + ", ".join(lacking))
+    return np.array([o.size_of(i) or 0.0 for i in b.ions], dtype=float)
 
 
-def _k_guntelberg(b, o):
+def _needs_size(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    return [f"ion size å of {n}" for n in _lacking_sizes(ions, o)]
+
+
+def _needs_nothing(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    return []
+
+
+def _needs_tj(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    return [f"Truesdell–Jones a, b of {i.name}" for i in _charged(ions) if i.tj_a is None or i.tj_b is None]
+
+
+def _needs_sit(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    charged = _charged(ions)
+    _, lacking = sit_mod.epsilon_matrix(tuple(i.name for i in charged), tuple(i.charge for i in charged), "zero")
+    return [f"SIT ε of {', '.join(lacking)}"] if lacking else []
+
+
+def _needs_pitzer(ions: tuple[Ion, ...], o: Options) -> list[str]:
+    cat = [i for i in ions if i.charge > 0]
+    an = [i for i in ions if i.charge < 0]
+    p = pz.pitzer_set(tuple(i.name for i in cat), tuple(i.name for i in an),
+                      tuple(i.charge for i in cat), tuple(i.charge for i in an), "zero")
+    return [f"Pitzer β0, β1, Cφ of {', '.join(p.missing_pairs)}"] if p.missing_pairs else []
+
+
+def _common(b: Batch) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    z2 = (b.z**2)[:, None]
+    sq = np.sqrt(b.ionic)[None, :]
+    a = water.dh_a_array(b.t)[None, :]
+    return z2, sq, a
+
+
+def _k_limiting(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
+    z2, sq, a = _common(b)
+    notes: list[str] = []
+    return _neutral_lg(b, o, dh._lg_limiting(z2, sq, a), notes), notes
+
+
+def _k_extended(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
+    z2, sq, a = _common(b)
+    bb = water.dh_b_array(b.t)[None, :]
+    notes: list[str] = []
+    size = _sizes(b, o, notes)[:, None]
+    return _neutral_lg(b, o, dh._lg_extended(z2, sq, a, bb, size), notes), notes
+
+
+def _k_guntelberg(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
     notes: list[str] = []
     return _neutral_lg(b, o, dh._lg_guntelberg(z2, sq, a), notes), notes
 
 
-def _k_davies(b, o):
+def _k_davies(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
     notes: list[str] = []
     if o.davies_coefficient != dh.DAVIES_COEFFICIENT:
-        notes.append(f"Davies linear coefficient {o.davies_coefficient} (default 0.3)")
+        notes.append(f"Davies linear coefficient {o.davies_coefficient} (default {dh.DAVIES_COEFFICIENT})")
     lg = dh._lg_davies(z2, sq, b.ionic[None, :], a, o.davies_coefficient)
     return _neutral_lg(b, o, lg, notes), notes
 
 
-def _k_tj(b, o):
+def _k_tj(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
-    bb = water._dh_b(b.t)[None, :]
+    bb = water.dh_b_array(b.t)[None, :]
     notes: list[str] = []
     lacking = [i.name for i in _charged(b.ions) if i.tj_a is None or i.tj_b is None]
     if lacking and o.missing != "zero":
@@ -191,36 +297,46 @@ def _k_tj(b, o):
     return _neutral_lg(b, o, lg, notes), notes
 
 
-def _k_bdot(b, o):
+def _k_bdot(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
-    bb = water._dh_b(b.t)[None, :]
+    bb = water.dh_b_array(b.t)[None, :]
     notes: list[str] = []
-    _check_sizes(b, o, notes)
-    if np.any(np.abs(b.t - 25.0) > 5.0):
-        from ..errors import warn_range
-
-        warn_range(f"model b-dot: Ḃ = {o.bdot} kg/mol is a 25 °C value; temperature outside 20–30 °C", stacklevel=5)
-    size = _sizes(b, o)[:, None]
+    size = _sizes(b, o, notes)[:, None]
     lg = dh._lg_b_dot(z2, sq, b.ionic[None, :], a, bb, size, o.bdot)
     return _neutral_lg(b, o, lg, notes), notes
 
 
-def _k_bates(b, o):
+def _k_bates(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
     notes: list[str] = []
     return _neutral_lg(b, o, dh._lg_bates_guggenheim(z2, sq, a), notes), notes
 
 
-def _warn_25(model: str, t: np.ndarray, what: str):
-    far = np.abs(t - 25.0) > 5.0
-    if np.any(far):
-        from ..errors import warn_range
+def _outside_window(model: str, what: str, t: np.ndarray) -> list[Violation]:
+    lo, hi = PARAMETER_WINDOW
+    far = (t < lo) | (t > hi)
+    if not np.any(far):
+        return []
+    return [Violation("temperature", f"model {model}: {what} are 25 °C values; temperature {float(t[far][0]):g} °C "
+                                     f"is outside {lo:g}–{hi:g} °C")]
 
-        warn_range(f"model {model}: {what} are 25 °C values; temperature {float(t[far][0]):g} °C is "
-                   "outside 20–30 °C", stacklevel=5)
+
+def _range(name: str, limit: float, imax: float) -> list[Violation]:
+    if imax > limit:
+        return [Violation("ionic-strength",
+                          f"model {name}: ionic strength {imax:.4g} mol/kg is above its range 0–{limit:g} mol/kg")]
+    return []
 
 
-def _k_sit(b, o):
+def _v_bdot(b: Batch, o: Options, imax: float) -> list[Violation]:
+    return _range("b-dot", dh.RANGES["b-dot"], imax) + _outside_window("b-dot", f"Ḃ = {o.bdot} kg/mol", b.t)
+
+
+def _v_sit(b: Batch, o: Options, imax: float) -> list[Violation]:
+    return _range("sit", sit_mod.SIT_MAX_IONIC_STRENGTH, imax) + _outside_window("sit", "ε coefficients", b.t)
+
+
+def _k_sit(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     notes: list[str] = []
     charged = np.array([i.charge != 0 for i in b.ions])
     names = tuple(n for n, c in zip(b.names, charged, strict=True) if c)
@@ -228,7 +344,6 @@ def _k_sit(b, o):
     eps, lacking = sit_mod.epsilon_matrix(names, zs, o.missing)
     if lacking:
         notes.append("SIT ε taken as zero for " + ", ".join(lacking))
-    _warn_25("sit", b.t, "ε coefficients")
     z2, sq, a = _common(b)
     d = a * sq / (1.0 + sit_mod.SIT_BA * sq)
     lg = -z2 * d
@@ -238,7 +353,7 @@ def _k_sit(b, o):
     return _neutral_lg(b, o, lg, notes), notes
 
 
-def _pitzer_split(b: Batch, o: Options):
+def _pitzer_split(b: Batch, o: Options) -> tuple[np.ndarray, np.ndarray, pz.PitzerSet]:
     ci = np.flatnonzero(b.z > 0)
     ai = np.flatnonzero(b.z < 0)
     p = pz.pitzer_set(tuple(b.names[i] for i in ci), tuple(b.names[i] for i in ai),
@@ -246,16 +361,18 @@ def _pitzer_split(b: Batch, o: Options):
     return ci, ai, p
 
 
-def _k_pitzer(b, o):
+def _k_pitzer(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     notes: list[str] = []
     ci, ai, p = _pitzer_split(b, o)
     if p.missing_pairs:
         notes.append("Pitzer binary parameters taken as zero for " + ", ".join(p.missing_pairs))
     if p.zero_mixing:
-        notes.append("untabulated mixing terms taken as zero: " + ", ".join(p.zero_mixing))
+        shown = ", ".join(p.zero_mixing[:6])
+        more = f" and {len(p.zero_mixing) - 6} more" if len(p.zero_mixing) > 6 else ""
+        notes.append(f"untabulated Pitzer mixing terms taken as zero (the usual convention): {shown}{more}")
     if not o.unsymmetrical:
         notes.append("unsymmetrical mixing (E-θ) terms switched off")
-    aphi = water._dh_a(b.t) * LN10 / 3.0
+    aphi = water.dh_a_array(b.t) * LN10 / 3.0
     lg = np.zeros_like(b.m)
     if ci.size and ai.size:
         ln_c, ln_a = pz.log_gamma(p, b.m[ci], b.m[ai], b.t, aphi, o.unsymmetrical)
@@ -267,6 +384,36 @@ def _k_pitzer(b, o):
         f = -aphi * (sq / (1 + pz.PITZER_B * sq) + (2 / pz.PITZER_B) * np.log1p(pz.PITZER_B * sq))
         lg[idx] = (b.z[idx, None] ** 2) * f / LN10
     return _neutral_lg(b, o, lg, notes), notes
+
+
+def _v_pitzer(b: Batch, o: Options, imax: float) -> list[Violation]:
+    """Per-salt molality limits and temperature ranges of the pairs that matter in this batch."""
+    ci, ai, p = _pitzer_split(b, o)
+    if not (ci.size and ai.size):
+        return _range("pitzer", pz.PITZER_MAX_IONIC_STRENGTH, imax)
+    share = pz.pair_shares(p, b.m[ci], b.m[ai])  # (nc, na, N)
+    limit = pz.pair_ionic_strength_limits(p)  # (nc, na)
+    out: list[Violation] = []
+    matters = share >= PAIR_SHARE_FOR_LIMITS
+    over = matters & (b.ionic[None, None, :] > limit[:, :, None])
+    for i, j in zip(*np.nonzero(np.any(over, axis=2)), strict=True):
+        k = int(np.argmax(np.where(over[i, j], b.ionic, -np.inf)))
+        out.append(Violation("ionic-strength", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters hold to "
+                             f"{p.max_molality[i, j]:g} mol/kg of the salt (I ≤ {limit[i, j]:.3g} mol/kg); here "
+                             f"I = {float(b.ionic[k]):.4g} mol/kg"))
+    if not np.any(np.isfinite(limit)) and imax > pz.PITZER_MAX_IONIC_STRENGTH:
+        out += _range("pitzer", pz.PITZER_MAX_IONIC_STRENGTH, imax)
+    used = np.any(matters, axis=2)
+    for i, j in zip(*np.nonzero(used), strict=True):
+        lo, hi = p.t_range[i, j]
+        far = (b.t < lo) | (b.t > hi)
+        if np.any(far):
+            what = ("linear temperature derivatives" if np.isfinite(p.dbeta0[i, j]) else "25 °C values")
+            out.append(Violation("temperature", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters ({what}) "
+                                 f"hold for {lo:g}–{hi:g} °C; temperature {float(b.t[far][0]):g} °C"))
+    if (np.any(p.theta_c) or np.any(p.theta_a)):
+        out += _outside_window("pitzer", "mixing terms θ, ψ", b.t)
+    return out
 
 
 _DH_CONV = "single-ion values from the model's own form; only mean (salt) values are measurable"
@@ -283,18 +430,25 @@ MODELS: dict[str, ModelInfo] = {
         ModelInfo("truesdell-jones", "Truesdell–Jones", dh.RANGES["truesdell-jones"], 70, _DH_CONV,
                   "Truesdell & Jones 1974", _k_tj, _needs_tj),
         ModelInfo("b-dot", "B-dot (Helgeson)", dh.RANGES["b-dot"], 60, _DH_CONV, "Helgeson 1969", _k_bdot,
-                  _needs_size),
+                  _needs_size, extra_violations=_v_bdot),
         ModelInfo("bates-guggenheim", "Bates–Guggenheim convention", dh.RANGES["bates-guggenheim"], 20,
                   "Bates–Guggenheim convention for single-ion activity (IUPAC 2002 pH recommendations)",
                   "Buck et al. 2002", _k_bates, _needs_nothing, in_auto=False),
         ModelInfo("sit", "specific ion interaction theory", sit_mod.SIT_MAX_IONIC_STRENGTH, 80,
                   "SIT (NEA) single-ion form; mean values are the measurable quantity",
-                  "NEA TDB reviews", _k_sit, _needs_sit),
-        ModelInfo("pitzer", "Pitzer (Harvie–Møller–Weare form)", 6.0, 90,
+                  "NEA TDB reviews", _k_sit, _needs_sit, extra_violations=_v_sit),
+        ModelInfo("pitzer", "Pitzer (Harvie–Møller–Weare form)", pz.PITZER_MAX_IONIC_STRENGTH, 90,
                   "Pitzer single-ion values in the Harvie–Møller–Weare convention; mean values are "
-                  "convention-free", "Pitzer 1991; Harvie, Møller & Weare 1984", _k_pitzer, _needs_pitzer),
+                  "convention-free", "Pitzer 1991; Harvie, Møller & Weare 1984", _k_pitzer, _needs_pitzer,
+                  extra_violations=_v_pitzer),
     ]
 }
+DH_FAMILY = frozenset({"limiting", "extended", "guntelberg", "davies", "truesdell-jones", "b-dot",
+                       "bates-guggenheim"})
+
+_ALIASES = {"debye-huckel": "extended", "extended-debye-huckel": "extended", "bdot": "b-dot",
+            "truesdell": "truesdell-jones", "tj": "truesdell-jones", "dh": "extended",
+            "limiting-law": "limiting", "bates": "bates-guggenheim"}
 
 
 def model_names() -> tuple[str, ...]:
@@ -302,27 +456,18 @@ def model_names() -> tuple[str, ...]:
     return (*MODELS, "auto")
 
 
-def get_model(name: str) -> ModelInfo:
-    """Look up a model by name (case- and underscore-insensitive)."""
+def get_model(name: object) -> ModelInfo:
+    """Look up a model by name (case- and underscore-insensitive).
+
+    Raises
+    ------
+    UnknownSpeciesError
+        Not a registered model name (the message lists the allowed names).
+    """
     if not isinstance(name, str):
         raise InputError(f"model must be a name, got {name!r}")
     key = name.strip().lower().replace("_", "-").replace(" ", "-")
-    aliases = {"debye-huckel": "extended", "extended-debye-huckel": "extended", "bdot": "b-dot",
-               "truesdell": "truesdell-jones", "tj": "truesdell-jones", "dh": "extended",
-               "limiting-law": "limiting", "bates": "bates-guggenheim"}
-    key = aliases.get(key, key)
+    key = _ALIASES.get(key, key)
     if key not in MODELS:
         raise UnknownSpeciesError(f"unknown model {name!r}; allowed: {', '.join(model_names())}")
     return MODELS[key]
-
-
-def missing_for(model: ModelInfo, ions: tuple[Ion, ...], options: Options) -> list[str]:
-    """What parameters ``model`` lacks for these ions (empty when it covers them)."""
-    if options.missing != "error":
-        return []
-    return model.needs(ions, options)
-
-
-def log10_gamma(model: ModelInfo, batch: Batch, options: Options) -> tuple[np.ndarray, list[str]]:
-    """Run a model kernel on plain arrays: log10 γ (n, N) and notes."""
-    return model.kernel(batch, options)
