@@ -22,6 +22,7 @@ demo: $(VENV)/.base
 
 test: $(VENV)/.test
 	$(PY) -m ruff check ionact tests benchmarks tools
+	$(PY) -m mypy
 	$(PY) -m pytest -q
 
 bench: $(VENV)/.test

@@ -10,6 +10,7 @@ import argparse
 import json
 import sys
 import warnings
+from typing import Any
 
 import numpy as np
 
@@ -52,15 +53,15 @@ def cmd_strength(args) -> int:
             raise IonactError("give either a composition or --conductivity/--tds, not both")
         est = (ionic_strength_from_conductivity(args.conductivity, args.rule or "russell")
                if args.conductivity is not None else ionic_strength_from_tds(args.tds, args.rule or "langelier"))
-        data = {"ionic_strength": est.value, "rule": est.rule, "coefficient": est.coefficient, "source": est.source}
-        _emit(args, data, f"I ≈ {est.value:.4g} mol/L  (rule of thumb '{est.rule}', ×{est.coefficient:g}; "
-                          f"{est.source})")
+        text = f"I ≈ {est.value:.4g} mol/L  (rule of thumb '{est.rule}', ×{est.coefficient:g}; {est.source})"
+        _emit(args, {"ionic_strength": est.value, "rule": est.rule, "coefficient": est.coefficient,
+                     "source": est.source}, text)
         return 0
     if not args.terms:
         raise IonactError("give a composition, e.g. 'ionact strength NaCl=0.1 \"CaCl2=2 mmol/kg\"'")
     sol = _solution(args)
-    data = {"ionic_strength_molal": sol.ionic_strength, "temperature": sol.temperature,
-            "charge_balance": sol.charge_balance, "molalities": sol.molalities}
+    data: dict[str, Any] = {"ionic_strength_molal": sol.ionic_strength, "temperature": sol.temperature,
+                            "charge_balance": sol.charge_balance, "molalities": sol.molalities}
     lines = [f"ionic strength  {sol.ionic_strength:.6g} mol/kg"]
     try:
         data["ionic_strength_molar"] = sol.molar_ionic_strength

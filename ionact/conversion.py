@@ -43,7 +43,7 @@ MAX_IONIC_STRENGTH = 10.0  # mol/kg: the search for a root stops here
 _TOL = 1e-12
 
 
-def _counter(ion: Ion, counter_ion) -> Ion:
+def _counter(ion: Ion, counter_ion) -> Ion | None:
     if ion.charge == 0:
         if counter_ion is not None:
             raise InputError(f"{ion.name} is neutral and takes no counter-ion (got {counter_ion!r})")

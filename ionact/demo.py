@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import sys
 import warnings
+from typing import Any
 
 import numpy as np
 
@@ -40,7 +41,8 @@ def survey_solution(without: tuple[str, ...] = ()) -> tuple[list[str], Solution,
         rows.append(Solution(amounts, 20.0, balance="Cl-"))
     m = np.stack([r.molality_array for r in rows], axis=1)
     batch = Solution({ion: m[i] for i, ion in enumerate(rows[0].ions)}, temperature=20.0)
-    return names, batch, [r.balanced_with[1] for r in rows]
+    added = [float(r.balanced_with[1]) if r.balanced_with else 0.0 for r in rows]
+    return names, batch, added
 
 
 def run(out=None) -> None:
@@ -55,8 +57,8 @@ def run(out=None) -> None:
     w("(invented scenario and data; compositions in mg/L, charge-balanced on Cl- as shown)\n\n")
     w(f"1. The samples, 20 °C — activity model {g.model} (auto: the most accurate model with parameters for "
       "every ion)\n")
-    for c in caught:
-        w(f"   note: {c.message}\n")
+    for caught_warning in caught:
+        w(f"   note: {caught_warning.message}\n")
     w("\n")
     head = f"{'sample':<22}{'I mol/kg':>10}{'Cl- adjust':>12}{'γ ' + typeset('NO3-'):>9}{'γ ' + typeset('Ca^2+'):>9}"
     w(head + "\n" + "-" * len(head) + "\n")
@@ -69,7 +71,7 @@ def run(out=None) -> None:
 
     _, matrices, _ = survey_solution(without=("NO3-",))
     matrices = matrices.with_temperature(25.0)
-    job = dict(analyte="NO3-", samples=SamplePopulation(matrices=matrices, labels=tuple(names),
+    job: dict[str, Any] = dict(analyte="NO3-", samples=SamplePopulation(matrices=matrices, labels=tuple(names),
                                                         matrix_ions={"Ca^2+": "300 mg/L"}),
                analyte_range=("0.5 mg/L as N", "30 mg/L as N"), standard_salt="KNO3", budget=Budget(mv=0.5),
                lowest_temperature=12.0, name="Harrowfield irrigation survey",

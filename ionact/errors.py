@@ -11,6 +11,7 @@ import contextlib
 import contextvars
 import os
 import sys
+import types
 import warnings
 from collections.abc import Iterator
 
@@ -108,7 +109,7 @@ def caller_stacklevel() -> int:
 
     Counted for a ``warnings.warn`` call made in the function that calls this one.
     """
-    frame = sys._getframe(1)
+    frame: types.FrameType | None = sys._getframe(1)
     level = 1
     while frame is not None and frame.f_code.co_filename.startswith(_PACKAGE_DIR):
         frame = frame.f_back

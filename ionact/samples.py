@@ -144,7 +144,8 @@ class SampleCheck:
 
     def rows(self) -> list[dict]:
         """One dict per sample with the report columns (numbers as floats, NaN where none)."""
-        cols = [(h, v.tolist() if isinstance(v, np.ndarray) else list(v)) for h, v in self.columns()]
+        cols = [(h, v.tolist() if isinstance(v, np.ndarray) else list(v))  # type: ignore[call-overload]
+                for h, v in self.columns()]
         return [{h: v[i] for h, v in cols} for i in range(len(self))]
 
     def plot(self, path=None, *, ax=None):
@@ -224,7 +225,7 @@ def _to_float_fast(cells):
     if np.any(bad):
         return None
     why: list[str | None] = [None] * len(cells)
-    for i in np.flatnonzero(empty):
+    for i in np.flatnonzero(empty).tolist():
         why[i] = "missing"
     return vals, why
 
@@ -389,12 +390,12 @@ def check_samples(
         ok = np.isfinite(v)
         i_val[ok] = v[ok]
         have |= ok
-        for i in np.flatnonzero(ok):
+        for i in np.flatnonzero(ok).tolist():
             sources[i] = "stated"
     matrix_c = {}
     if ion_cols:
         comp = {}
-        bad_ion = [None] * n
+        bad_ion: list[str | None] = [None] * n
         for name, (ion, fct, values) in ion_cols.items():
             v, why = _to_float(values)
             for i, w in enumerate(why):
@@ -411,7 +412,7 @@ def check_samples(
             matrix_c[name] = (ion, np.where(use, c, 0.0))
         i_val[use] = ionic[use]
         have |= use
-        for i in np.flatnonzero(use):
+        for i in np.flatnonzero(use).tolist():
             sources[i] = "ions"
             if bad_ion[i] and reasons[i] is None:
                 reasons[i] = bad_ion[i]
@@ -427,22 +428,22 @@ def check_samples(
                     est = fn(v[use], rule)
                 i_val[use] = est.value
                 have |= use
-                for i in np.flatnonzero(use):
+                for i in np.flatnonzero(use).tolist():
                     sources[i] = f"{col} ({est.rule})"
-            for i in np.flatnonzero(~have):
+            for i in np.flatnonzero(~have).tolist():
                 if why[i] not in (None, "missing") and reasons[i] is None:
                     reasons[i] = f"{col} {why[i]}"
     if not any(k in parsed for k in ("ionic_strength", "conductivity", "tds")) and not ion_cols:
         raise InputError("the samples need a source of ionic strength: an 'ionic_strength', 'conductivity' or "
                          "'tds' column, or ion columns such as 'Na+ [mg/L]'")
-    for i in np.flatnonzero(~have):
+    for i in np.flatnonzero(~have).tolist():
         if reasons[i] is None:
             reasons[i] = "no ionic strength: every source column is empty for this row"
     # physically impossible values are input errors, not samples to dilute
-    for i in np.flatnonzero(np.isfinite(analyte) & (analyte > MAX_ANALYTE)):
+    for i in np.flatnonzero(np.isfinite(analyte) & (analyte > MAX_ANALYTE)).tolist():
         if reasons[i] is None:
             reasons[i] = f"analyte {analyte[i]:.4g} mol/L is impossible (above {MAX_ANALYTE:g} mol/L)"
-    for i in np.flatnonzero(np.isfinite(i_val) & (i_val > MAX_IONIC_STRENGTH)):
+    for i in np.flatnonzero(np.isfinite(i_val) & (i_val > MAX_IONIC_STRENGTH)).tolist():
         if reasons[i] is None:
             reasons[i] = (f"ionic strength {i_val[i]:.4g} mol/kg ({sources[i]}) is impossible for a water sample "
                           f"(above {MAX_IONIC_STRENGTH:g})")
@@ -524,7 +525,8 @@ def check_samples(
             lo, hi = calibration_range
         except (TypeError, ValueError):
             raise InputError(f"calibration_range {calibration_range!r} must be a pair (lo, hi)") from None
-        cal = tuple(float(parse_amount(x, an, default_basis=MOLAR).value) for x in (lo, hi))
+        cal = (float(parse_amount(lo, an, default_basis=MOLAR).value),
+               float(parse_amount(hi, an, default_basis=MOLAR).value))
         if not (0 < cal[0] < cal[1]):
             raise InputError(f"calibration_range {calibration_range!r} must satisfy 0 < lo < hi")
     env_hi = method.envelope[1]

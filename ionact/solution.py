@@ -205,10 +205,11 @@ class Solution:
         add = -cb / ion.charge
         new = self._m[k] + add
         if np.any(new < -1e-15):
-            pos = np.argwhere(new < -1e-15)[0] if np.ndim(new) else ()
+            where = ""
+            if np.ndim(new):
+                where = f" at row {tuple(int(x) for x in np.argwhere(new < -1e-15)[0])}"
             raise InputError(
-                f"balancing with {ion.name} would need a negative amount"
-                f"{' at row ' + str(int(pos[0])) if len(pos) == 1 else ''}: the excess charge has "
+                f"balancing with {ion.name} would need a negative amount{where}: the excess charge has "
                 f"the sign of {ion.name}; name an ion of the opposite charge"
             )
         m = np.array(self._m)

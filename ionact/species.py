@@ -542,14 +542,15 @@ def _parse_salt_cached(text: str, ions_key: tuple | None) -> Salt:
             parsed.append((resolve_ion(name).name, int(count)))
         comp = tuple(parsed)
     else:
-        comp = _salt_map().get(s)
-        if comp is None:
+        found = _salt_map().get(s)
+        if found is None:
             if s in _salt_map():
                 raise InputError(f"salt formula {text!r} has more than one reading; pass ions=")
             raise UnknownSpeciesError(
                 f"unknown salt {text!r}: not a combination of tabulated ions; "
                 "pass ions={'Na+': 1, 'X-': 1} to define it"
             )
+        comp = found
     charge = sum(resolve_ion(i).charge * n for i, n in comp)
     if charge != 0:
         raise InputError(f"salt {text!r} is not electroneutral: its ions carry net charge {charge:+d}")

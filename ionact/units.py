@@ -12,6 +12,7 @@ import re
 import warnings
 from dataclasses import dataclass
 from functools import lru_cache
+from typing import Any
 
 import numpy as np
 
@@ -293,7 +294,7 @@ def parse_scalar(value: object, unit: str, what: str) -> float:
     if isinstance(value, str) or (hasattr(value, "magnitude") and hasattr(value, "units")):
         ureg = registry()
         try:
-            q = ureg.Quantity(value) if isinstance(value, str) else value
+            q: Any = ureg.Quantity(value) if isinstance(value, str) else value
             v = float(q.to(unit).magnitude)
         except Exception:
             raise UnitError(f"{what} {value!r} cannot be read in {unit}") from None

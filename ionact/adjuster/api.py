@@ -79,8 +79,9 @@ def stock_components(stock: object, analyte: Ion) -> list[StockComponent]:
 
 
 def _buffer_components(buffer: Buffer, n_before: int) -> tuple[list[StockComponent], BufferPlan]:
-    acid = StockComponent.of(buffer.acid, buffer.total / 2)
-    base = StockComponent.of(buffer.base, buffer.total / 2)
+    total = float(buffer.total)
+    acid = StockComponent.of(buffer.acid, total / 2)
+    base = StockComponent.of(buffer.base, total / 2)
     acid_sp = [ion.name for ion, _ in acid.ions]
     base_sp = [ion.name for ion, _ in base.ions]
     for (a, b), (pka, src) in acid_table().items():

@@ -12,6 +12,7 @@ import dataclasses
 import math
 import warnings
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -19,6 +20,7 @@ from ..density import water_per_litre
 from ..errors import InfeasibleDesignError, ValidityRangeWarning
 from ..models.registry import MODELS, Batch
 from ..models.resolver import ModelChoice, resolve_model
+from ..species import Ion
 from .inputs import StockComponent
 from .system import Evaluated, System
 
@@ -126,7 +128,7 @@ def _median_per_point(values: np.ndarray, G: int, ev: Evaluated) -> np.ndarray:
 def stock_saturation(components: tuple[StockComponent, ...], amounts: np.ndarray, temperature: float,
                      density: str | None, t_low: float) -> dict[str, tuple[float, float | None]]:
     """Molality of each component in the stock and its saturation molality at ``t_low`` (None if untabulated)."""
-    ions = []
+    ions: list[Ion] = []
     for c in components:
         for ion, _ in c.ions:
             if ion.name not in [i.name for i in ions]:
@@ -221,6 +223,7 @@ def search(system: System, job: Job) -> SearchResult:
         notes.append(f"no solubility data for the inert stock salts: the stock strength search stops at "
                      f"{SEARCH_CEILING:g}× the given amounts; check the supplier's solubility data")
     for _ in range(_MODEL_MOVES):
+        scan: dict[str, Any]
         if job.solve == "none":
             x, scan = 1.0, {}
         else:
@@ -254,7 +257,7 @@ def _root(system: System, job: Job, notes: list[str]) -> tuple[float, dict, Mode
     ev = system.evaluate(*points(system, job, grid))
     wg = ev.worst * job.slope
     valid = _valid(system, ev)
-    scan = {"x": grid, "worst_mv": wg, "valid": valid}
+    scan: dict[str, Any] = {"x": grid, "worst_mv": wg, "valid": valid}
     ok = np.flatnonzero((wg <= job.budget_mv) & valid)
     what = "stock scale" if job.solve == "stock" else "volume ratio"
     if ok.size == 0 and not np.all(valid) and job.requested != "auto":

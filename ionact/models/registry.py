@@ -128,7 +128,9 @@ def make_options(
     for k, v in (sizes or {}).items():
         name = Ion.parse(k).name
         sz[name] = _finite(v, f"size of {name} (Å)", 1e-9, 20.0)
-    if isinstance(setschenow, int | float) and not isinstance(setschenow, bool):
+    if isinstance(setschenow, bool):
+        raise InputError(f"setschenow {setschenow!r} must be a number or a mapping of species -> k")
+    if isinstance(setschenow, int | float):
         ks: dict[str, float] = {}
         kd = _finite(setschenow, "setschenow (kg/mol)", -2.0, 2.0)
     else:
