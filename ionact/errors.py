@@ -89,10 +89,10 @@ def strict(enabled: bool = True) -> Iterator[None]:
     --------
     >>> import ionact as ia
     >>> with ia.strict():
-    ...     ia.water.density(120.0)
+    ...     ia.water.density(103.0)
     Traceback (most recent call last):
     ...
-    ionact.errors.ValidityRangeError: water density: temperature 120 °C is outside 0–100 °C
+    ionact.errors.ValidityRangeError: water density: temperature 103 °C is outside 0–100 °C
     """
     token = _STRICT.set(enabled)
     try:
@@ -117,7 +117,7 @@ def caller_stacklevel() -> int:
     return level
 
 
-def warn_range(message: str, stacklevel: int | None = None) -> None:
+def warn_range(message: str) -> None:
     """Warn (or raise in strict mode) that something is used outside its validity range.
 
     The warning points at the caller's own code (the first frame outside ionact).

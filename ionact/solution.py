@@ -14,7 +14,6 @@ solutions, ions without a tabulated volume).
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 from functools import cached_property
@@ -26,7 +25,7 @@ from .density import check_density, solution_density, water_per_litre
 from .errors import InputError, warn_range
 from .references import cite
 from .species import Ion, Salt, resolve_ion
-from .units import MOLAL, MOLAR, Amount, parse_amount
+from .units import MOLAL, Amount, parse_amount
 
 __all__ = [
     "Solution",
@@ -118,10 +117,7 @@ class Solution:
                 seen[ion.name] = 1
         if not (isinstance(charge_tolerance, int | float) and 0 <= charge_tolerance < 1):
             raise InputError(f"charge_tolerance {charge_tolerance!r} must be in [0, 1)")
-        t = np.asarray(temperature, dtype=float)
-        if not np.all(np.isfinite(t)):
-            raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
-        water._temperature(t, "solution")  # range warning / absolute-zero check
+        t = _solution_temperature(temperature)
         shapes = [np.shape(a.value) for _, a in parts] + [t.shape]
         dens = check_density(density)
         if dens is not None and not isinstance(dens, str):
@@ -251,10 +247,7 @@ class Solution:
             raise InputError(f"molalities of shape {m.shape} do not match {len(objs)} species")
         if not np.all(np.isfinite(m)) or np.any(m < 0):
             raise InputError("molalities must be finite and ≥ 0 mol/kg")
-        t = np.asarray(temperature, dtype=float)
-        if not np.all(np.isfinite(t)):
-            raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
-        water._temperature(t, "solution")
+        t = _solution_temperature(temperature)
         try:
             shape = np.broadcast_shapes(m.shape[1:], t.shape)
         except ValueError:
@@ -473,9 +466,8 @@ class Solution:
         return f"Solution({{{body}}}, temperature={float(self._t):g})"
 
     def with_temperature(self, temperature) -> Solution:
-        """The same composition at another temperature (°C)."""
-        t = np.asarray(temperature, dtype=float)
-        water._temperature(t, "solution")
+        """The same composition at another temperature (°C, or a unit string / Quantity)."""
+        t = _solution_temperature(temperature)
         shape = np.broadcast_shapes(self.shape, t.shape)
         m = np.broadcast_to(self._m, (len(self._names), *shape))
         dens = self._density
@@ -569,35 +561,19 @@ class Solution:
         return self.mix(pure, f - 1.0)
 
 
-def _salt_amount(salt: Salt, value, basis: str) -> Amount:
+def _solution_temperature(temperature: object) -> np.ndarray:
+    """°C (numbers, arrays, "25 degC", a pint Quantity), finite and within liquid water's range."""
+    t = water._temperature(temperature, "solution temperature")
+    if not np.all(np.isfinite(t)):
+        raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
+    return t
+
+
+def _salt_amount(salt: Salt, value: object, basis: str) -> Amount:
+    """An amount of a salt: mass units use the salt's molar mass (hydrate water included)."""
     if isinstance(value, Amount):
         return value
-    if isinstance(value, str) or (hasattr(value, "magnitude") and hasattr(value, "units")):
-        from .units import registry
-
-        text = value if isinstance(value, str) else str(value)
-        try:
-            amt = parse_amount(value, None, default_basis=basis)
-        except Exception as exc:
-            # mass units need the salt's molar mass rather than an ion's
-            ureg = registry()
-            try:
-                q = ureg.Quantity(value) if isinstance(value, str) else value
-                for target, b in (("g/L", MOLAR), ("g/kg", MOLAL)):
-                    try:
-                        v = float(q.to(target).magnitude)
-                    except Exception:
-                        continue
-                    if not (math.isfinite(v) and v >= 0):
-                        raise InputError(f"amount of {salt.text} {text!r} must be finite and ≥ 0") from None
-                    return Amount(v / salt.molar_mass, b)
-            except InputError:
-                raise
-            except Exception:
-                pass
-            raise exc
-        return amt
-    return parse_amount(value, None, default_basis=basis)
+    return parse_amount(value, None, default_basis=basis, molar_mass=salt.molar_mass, what=salt.text)
 
 
 def _out(x):

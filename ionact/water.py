@@ -42,17 +42,32 @@ ZERO_CELSIUS = 273.15  # K
 WATER_MOLAR_MASS = 18.01528  # g/mol
 
 T_MIN, T_MAX = 0.0, 100.0
+# Liquid water at 1 atm: the correlations are used with a range warning in these narrow
+# margins (supercooled water to −5 °C, superheated to 105 °C) and refused beyond them.
+T_MARGIN_LOW, T_MARGIN_HIGH = -5.0, 105.0
+KELVIN_HINT = 200.0  # °C: a value above this is most likely a temperature in kelvin
 
 
-def _temperature(t, what: str) -> np.ndarray:
-    arr = np.asarray(t, dtype=float)
-    if np.any(arr < -ZERO_CELSIUS):
-        bad = arr[arr < -ZERO_CELSIUS].flat[0]
-        raise InputError(f"{what}: temperature {bad:g} °C is below absolute zero")
+def _temperature(t: object, what: str) -> np.ndarray:
+    """Temperatures (°C, or unit strings / Quantities) checked against liquid water's range.
+
+    NaN passes through (NaN in that position of the result); a value outside
+    −5…105 °C is an error, with a hint when it looks like kelvin; 0–100 °C is silent and the
+    margins warn.
+    """
+    from .units import temperature_celsius
+
+    arr = np.asarray(temperature_celsius(t, what), dtype=float)
     finite = arr[np.isfinite(arr)]
+    if finite.size and (finite.min() < T_MARGIN_LOW or finite.max() > T_MARGIN_HIGH):
+        bad = float(finite.min() if finite.min() < T_MARGIN_LOW else finite.max())
+        hint = (f"; it looks like kelvin — {bad:g} K is {bad - ZERO_CELSIUS:.2f} °C" if bad > KELVIN_HINT
+                else "")
+        raise InputError(f"{what}: temperature {bad:g} °C is outside liquid water's {T_MIN:g}–{T_MAX:g} °C "
+                         f"(allowed with a warning down to {T_MARGIN_LOW:g} and up to {T_MARGIN_HIGH:g} °C){hint}")
     if finite.size and (finite.min() < T_MIN or finite.max() > T_MAX):
-        bad = finite.min() if finite.min() < T_MIN else finite.max()
-        warn_range(f"{what}: temperature {bad:g} °C is outside 0–100 °C", stacklevel=4)
+        bad = float(finite.min() if finite.min() < T_MIN else finite.max())
+        warn_range(f"{what}: temperature {bad:g} °C is outside 0–100 °C")
     return arr
 
 

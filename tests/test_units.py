@@ -2,7 +2,10 @@
 
 import warnings
 
+import numpy as np
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 
 from ionact.errors import InputError, UnitAssumptionWarning, UnitError
 from ionact.units import convert_amount, parse_amount
@@ -86,3 +89,76 @@ def test_nan_and_negative_numbers():
         parse_amount(float("nan"))
     with pytest.raises(InputError, match="negative"):
         parse_amount([0.1, -0.2])
+
+
+# -- the strict amount grammar ---------------------------------------------------------------
+@pytest.mark.parametrize("text,fragment", [
+    ("0,1 mol/kg", "'0.1 mol/kg'"),        # read as 0 before: the ",1" was dropped
+    ("2,1 mg/L", "'2.1 mg/L'"),
+    ("0,5 g/L", "decimal comma"),
+    ("1,000 mg/L", "thousands separator"),
+])
+def test_decimal_commas_are_refused_with_the_corrected_string(text, fragment):
+    with pytest.raises(InputError, match=fragment):
+        parse_amount(text, "Cl-")
+
+
+@pytest.mark.parametrize("text,err", [
+    ("9**9**9", InputError), ("9**9**9 mol/L", InputError), ("2 3 mol/L", InputError), ("0.1=2", InputError),
+    ("1+2 mol/L", InputError), ("2*3 mmol/L", InputError), ("1 %", UnitError), ("1 dimensionless", UnitError),
+    ("1 MM", UnitError), ("1 mol/L/L/L", UnitError), ("nan mol/L", UnitError), ("inf mg/L", UnitError),
+    ("1 mol/(L)", InputError), ("1 mmol/dm^3", InputError), ("x" * 30000, InputError), ("1 " + "m" * 50, UnitError),
+])
+def test_arithmetic_and_non_amounts_are_refused(text, err):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        with pytest.raises(err):
+            parse_amount(text, "Cl-")
+
+
+@pytest.mark.parametrize("value", [True, False, np.bool_(True), np.array([True, False])])
+def test_booleans_are_not_amounts(value):
+    with pytest.raises(InputError, match="boolean"):
+        parse_amount(value)
+
+
+def test_masked_arrays_are_refused():
+    with pytest.raises(InputError, match="masked"):
+        parse_amount(np.ma.array([0.1, 0.2], mask=[False, True]))
+
+
+@pytest.mark.parametrize("unit,expected", [("mM", 1.0), ("mmol/L", 1.0), ("nmol/L", 1e6), ("g/L", 0.035453),
+                                           ("mg/kg", 1e-3 / 0.997 * 35453), ("µg/L", 35453), ("meq/L", 1.0)])
+def test_any_input_unit_can_be_asked_for_on_output(unit, expected):
+    # 1 mmol/L of chloride (35.453 g/mol) in each unit; mg/kg goes through 0.997 kg water per litre
+    v = convert_amount(1e-3, "molar", unit, "Cl-", water_per_litre=0.997)
+    assert v == pytest.approx(expected, rel=1e-4)
+    back = parse_amount(f"{v!r} {unit}", "Cl-")
+    assert back.value == pytest.approx(1e-3 if back.basis == "molar" else 1e-3 / 0.997, rel=1e-9)
+
+
+UNITS = {"mol/L": 1.0, "mmol/L": 1e-3, "mM": 1e-3, "µM": 1e-6, "umol/L": 1e-6, "mol/kg": 1.0, "mmol/kg": 1e-3,
+         "M": 1.0, "nM": 1e-9}
+
+
+@given(st.floats(0, 1e6, allow_nan=False, allow_infinity=False), st.sampled_from(sorted(UNITS)),
+       st.sampled_from(["", " ", "  "]))
+def test_valid_strings_read_exactly_what_a_person_reads(x, unit, sep):
+    text = f"{x!r}{sep}{unit}"
+    assert parse_amount(text).value == pytest.approx(x * UNITS[unit], rel=1e-15, abs=0)
+
+
+@given(st.text(max_size=60))
+def test_any_string_parses_or_raises_a_named_error_quickly(text):
+    import time
+
+    t0 = time.perf_counter()
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")
+            a = parse_amount(text, "NO3-")
+    except (InputError, UnitError):
+        pass
+    else:
+        assert np.isfinite(a.value) and a.value >= 0
+    assert time.perf_counter() - t0 < 0.05  # bounded (< 10 ms typical; the first pint call builds the registry)

@@ -71,14 +71,28 @@ def test_vectorised_shapes():
 
 
 def test_range_warning_and_strict():
-    with pytest.warns(ValidityRangeWarning, match="120 °C is outside 0–100 °C"):
-        water.density(120.0)
+    # liquid water 0–100 °C; a narrow margin (−5…105 °C) warns, and strict mode refuses it
+    with pytest.warns(ValidityRangeWarning, match="104 °C is outside 0–100 °C"):
+        water.density(104.0)
     with ia.strict(), pytest.raises(ValidityRangeError, match="-5"):
         water.debye_huckel_a(-5.0)
 
 
-def test_absolute_zero_and_zero_charge():
-    with pytest.raises(ia.InputError, match="absolute zero"):
-        water.density(-300.0)
+@pytest.mark.parametrize("t,fragment", [(-300.0, "-300 °C is outside"), (120.0, "120 °C is outside"),
+                                        (1000.0, "1000 K is 726.85 °C"), (298.15, "looks like kelvin")])
+def test_temperatures_outside_liquid_water_are_errors(t, fragment):
+    # Issue: water.density(1000) was −11 812 kg/m³, and 298.15 "°C" gave γ with exit 0.
+    with pytest.raises(ia.InputError, match=fragment):
+        water.density(t)
+
+
+def test_temperature_units_and_nan():
+    assert water.density("77 degF") == pytest.approx(water.density(25.0))
+    assert water.density("298.15 K") == pytest.approx(water.density(25.0))
+    out = water.density(np.array([25.0, np.nan]))
+    assert np.isnan(out[1]) and out[0] == pytest.approx(997.045, abs=1e-3)  # Kell 1975 at 25 °C
+
+
+def test_zero_charge():
     with pytest.raises(ia.InputError, match="charge 0"):
         ia.nernst_slope(0)

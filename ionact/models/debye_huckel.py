@@ -82,8 +82,7 @@ def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True)
     if warn and model in RANGES and hi > RANGES[model] and np.isfinite(hi):
         warn_range(
             f"model {model}: ionic strength {hi:.4g} mol/kg is above its range "
-            f"0–{RANGES[model]:g} mol/kg",
-            stacklevel=4,
+            f"0–{RANGES[model]:g} mol/kg"
         )
     return z, i, t, a
 
@@ -242,7 +241,7 @@ def b_dot(charge, ionic_strength, size, temperature=25.0, bdot=B_DOT):
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "b-dot")
     if np.any(np.abs(t - 25.0) > 5.0):
-        warn_range(f"model b-dot: Ḃ = {bdot} is a 25 °C value; temperature outside 20–30 °C", stacklevel=3)
+        warn_range(f"model b-dot: Ḃ = {bdot} is a 25 °C value; temperature outside 20–30 °C")
     b = water._dh_b(t)
     return _gamma(_lg_b_dot(z * z, np.sqrt(i), i, a, b, _size(size, "b-dot"), bdot))
 
