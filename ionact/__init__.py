@@ -47,8 +47,9 @@ from .errors import (
     ValidityRangeWarning,
     strict,
 )
+from .estimates import IonicStrengthEstimate, ionic_strength_from_conductivity, ionic_strength_from_tds
 from .samples import SampleCheck, check_samples
-from .solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
+from .solution import Solution
 from .species import Ion, Salt, register_ion
 from .water import nernst_slope
 
@@ -60,6 +61,7 @@ __all__ = [
     "Salt",
     "register_ion",
     "Solution",
+    "IonicStrengthEstimate",
     "ionic_strength_from_conductivity",
     "ionic_strength_from_tds",
     "ActivityCoefficients",

@@ -1,71 +1,88 @@
 """The ``ionact`` command: one subcommand per job, ``--json`` everywhere.
 
-User mistakes print one line naming the problem and exit with status 2; a traceback is
-shown only with ``--debug``.
+Exit statuses: 0 success, 1 a check failed (the report is still printed), 2 bad input
+(one line on standard error naming the problem; JSON on standard error with ``--json``),
+130 interrupted. ``--debug`` (anywhere on the line) shows tracebacks; ``--strict``
+(anywhere) turns range warnings into errors. A closed pipe (``| head``) ends quietly.
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 import warnings
+from collections.abc import Sequence
+from pathlib import Path
 from typing import Any
-
-import numpy as np
 
 from .errors import IonactError
 
-EXIT_USER = 2
+__all__ = ["main", "build_parser", "EXIT_OK", "EXIT_FAILED", "EXIT_USER", "EXIT_INTERRUPTED", "ERROR_FORMAT"]
+
+EXIT_OK, EXIT_FAILED, EXIT_USER, EXIT_INTERRUPTED = 0, 1, 2, 130
+ERROR_FORMAT = "ionact-error"
+MAX_DESIGN_BYTES = 50_000_000
+_GLOBAL_FLAGS = ("--debug", "--strict")
 
 
-def _jsonable(x):
-    if isinstance(x, dict):
-        return {str(k): _jsonable(v) for k, v in x.items()}
-    if isinstance(x, list | tuple):
-        return [_jsonable(v) for v in x]
-    if isinstance(x, np.ndarray):
-        return x.tolist()
-    if isinstance(x, np.generic):
-        return x.item()
-    return x
+def _json_text(data: Any) -> str:
+    from ._frozen import plain
+
+    return json.dumps(plain(data), indent=2, ensure_ascii=False, allow_nan=False)
 
 
-def _emit(args, data: dict, text: str) -> None:
+def _emit(args: argparse.Namespace, data: dict[str, Any], text: str, fmt: str) -> None:
     if getattr(args, "json", False):
-        print(json.dumps(_jsonable(data), indent=2, ensure_ascii=False))
+        print(_json_text({"format": fmt, "version": 1, **data}))
     else:
         print(text)
 
 
-def _solution(args):
+def _quantity(value: str | None, unit: str, what: str) -> float | None:
+    from .units import parse_scalar
+
+    return None if value is None else parse_scalar(value, unit, what)
+
+
+def _solution(args: argparse.Namespace) -> Any:
     from ._composition import solution_from_terms
 
     return solution_from_terms(args.terms, args.temperature, balance=args.balance,
-                               charge_tolerance=args.charge_tolerance)
+                               charge_tolerance=args.charge_tolerance, density=_density(args))
 
 
-def cmd_strength(args) -> int:
-    from .solution import ionic_strength_from_conductivity, ionic_strength_from_tds
+def _density(args: argparse.Namespace) -> Any:
+    d = getattr(args, "density", None)
+    if d is None or d == "water":
+        return d
+    return _quantity(d, "kg/L", "--density")
 
-    if args.conductivity is not None or args.tds is not None:
+
+def cmd_strength(args: argparse.Namespace) -> int:
+    from .estimates import ionic_strength_from_conductivity, ionic_strength_from_tds
+
+    ec = _quantity(args.conductivity, "uS/cm", "--conductivity")
+    tds = _quantity(args.tds, "mg/L", "--tds")
+    if ec is not None or tds is not None:
         if args.terms:
             raise IonactError("give either a composition or --conductivity/--tds, not both")
-        est = (ionic_strength_from_conductivity(args.conductivity, args.rule or "russell")
-               if args.conductivity is not None else ionic_strength_from_tds(args.tds, args.rule or "langelier"))
+        est = (ionic_strength_from_conductivity(ec, rule=args.rule or "russell") if ec is not None
+               else ionic_strength_from_tds(tds, rule=args.rule or "langelier"))
         text = f"I ≈ {est.value:.4g} mol/L  (rule of thumb '{est.rule}', ×{est.coefficient:g}; {est.source})"
-        _emit(args, {"ionic_strength": est.value, "rule": est.rule, "coefficient": est.coefficient,
-                     "source": est.source}, text)
-        return 0
+        _emit(args, {"ionic_strength": est.value, "ionic_strength_unit": "mol/L", "rule": est.rule,
+                     "coefficient": est.coefficient, "source": est.source}, text, "ionact-ionic-strength")
+        return EXIT_OK
     if not args.terms:
         raise IonactError("give a composition, e.g. 'ionact strength NaCl=0.1 \"CaCl2=2 mmol/kg\"'")
     sol = _solution(args)
-    data: dict[str, Any] = {"ionic_strength_molal": sol.ionic_strength, "temperature": sol.temperature,
-                            "charge_balance": sol.charge_balance, "molalities": sol.molalities}
+    data: dict[str, Any] = {"ionic_strength_molal": sol.ionic_strength, "temperature_c": sol.temperature,
+                            "charge_balance_mol_per_kg": sol.charge_balance, "molalities": sol.molalities}
     lines = [f"ionic strength  {sol.ionic_strength:.6g} mol/kg"]
     try:
         data["ionic_strength_molar"] = sol.molar_ionic_strength
-        data["density"] = sol.density
+        data["density_kg_per_l"] = sol.density
         lines.append(f"                {sol.molar_ionic_strength:.6g} mol/L (density {sol.density:.5f} kg/L)")
     except IonactError as exc:
         lines.append(f"                (molar basis unavailable: {exc})")
@@ -75,11 +92,13 @@ def cmd_strength(args) -> int:
         data["balanced_with"] = {"ion": ion, "added_mol_per_kg": add}
         lines.append(f"balanced with   {ion}: {add * 1e3:+.4g} mmol/kg added")
     lines += [f"  {k:<10} {v:.6g} mol/kg" for k, v in sol.molalities.items()]
-    _emit(args, data, "\n".join(lines))
-    return 0
+    _emit(args, data, "\n".join(lines), "ionact-ionic-strength")
+    return EXIT_OK
 
 
-def cmd_gamma(args) -> int:
+def cmd_gamma(args: argparse.Namespace) -> int:
+    import numpy as np
+
     from .activity import activity_coefficients, compare_models
 
     if not args.terms:
@@ -91,8 +110,9 @@ def cmd_gamma(args) -> int:
             c = compare_models(sol)
         data = {"ionic_strength": sol.ionic_strength, "models": c.gammas, "in_range": c.in_range,
                 "skipped": c.skipped, "spread": c.spread, "spread_mv": c.spread_mv}
-        _emit(args, data, f"I = {sol.ionic_strength:.5g} mol/kg, {sol.temperature:g} °C\n" + c.table())
-        return 0
+        _emit(args, data, f"I = {sol.ionic_strength:.5g} mol/kg, {sol.temperature:g} °C\n" + c.table(),
+              "ionact-model-comparison")
+        return EXIT_OK
     g = activity_coefficients(sol, model=args.model, missing=args.missing)
     lines = [f"I = {sol.ionic_strength:.5g} mol/kg, {sol.temperature:g} °C, model {g.model} ({g.title})"]
     if args.model == "auto":
@@ -100,225 +120,320 @@ def cmd_gamma(args) -> int:
     lines += [f"  {ion:<10} γ = {v:.5f}   log10 γ = {np.log10(v):+.5f}" for ion, v in g.items()]
     lines.append(f"convention: {g.convention}")
     lines += [f"note: {n}" for n in g.notes]
-    if not g.in_range:
-        lines.append(f"warning: outside the model's range 0–{g.max_ionic_strength:g} mol/kg")
-    _emit(args, g.to_dict(), "\n".join(lines))
-    return 0
+    lines += [f"warning: {v}" for v in g.violations]
+    _emit(args, g.to_dict(), "\n".join(lines), "ionact-activity-coefficients")
+    return EXIT_OK
 
 
-def cmd_convert(args) -> int:
+def cmd_convert(args: argparse.Namespace) -> int:
+    import numpy as np
+
     from .conversion import activity_from_concentration, activity_from_px, concentration_from_activity
 
-    matrix = None
-    if args.terms:
-        from ._composition import solution_from_terms
-
-        matrix = solution_from_terms(args.terms, args.temperature, balance=args.balance,
-                                     charge_tolerance=args.charge_tolerance)
+    matrix = _solution(args) if args.terms else None
     given = [x is not None for x in (args.activity, args.px, args.concentration)]
     if sum(given) != 1:
         raise IonactError("give exactly one of --activity, --px or --concentration")
-    kw = dict(matrix=matrix, counter_ion=args.counter_ion, model=args.model)
+    kw: dict[str, Any] = dict(matrix=matrix, counter_ion=args.counter_ion, model=args.model)
     if matrix is None:
         kw["temperature"] = args.temperature
     if args.concentration is not None:
-        conc = args.concentration
-        try:
-            conc = float(conc)
-        except ValueError:
-            pass
-        r = activity_from_concentration(args.ion, conc, **kw)
+        r = activity_from_concentration(args.ion, args.concentration, **kw)
     else:
-        a = args.activity if args.activity is not None else activity_from_px(args.px)
+        a = _quantity(args.activity, "", "--activity") if args.activity is not None else activity_from_px(
+            _quantity(args.px, "", "--px"))
         r = concentration_from_activity(args.ion, a, **kw)
     data = r.to_dict()
     lines = [f"{r.ion} with counter-ion {r.counter_ion} in "
              f"{'pure water' if matrix is None else 'the given matrix'}, model {r.model}"]
-    px = -np.log10(r.activity)
-    lines.append(f"  activity        {r.activity:.6g}   (p{r.ion.rstrip('+-0123456789')} = {px:.4f})")
+    lines.append(f"  activity        {r.activity:.6g}   (pX = {-np.log10(r.activity):.4f})")
     lines.append(f"  γ               {r.gamma:.6f}")
     lines.append(f"  molality        {r.molality:.6g} mol/kg")
+    conc = []
     for unit in args.unit or []:
         v = r.concentration(unit)
-        data.setdefault("concentration", {})[unit] = v
+        conc.append({"value": v, "unit": unit})
         lines.append(f"  concentration   {v:.6g} {unit}")
+    data["concentrations"] = conc
     lines.append(f"  ionic strength  {r.ionic_strength:.6g} mol/kg")
-    _emit(args, data, "\n".join(lines))
-    return 0
+    _emit(args, data, "\n".join(lines), "ionact-conversion")
+    return EXIT_OK
 
 
-def cmd_design(args) -> int:
+def _check_figure_path(path: str | None) -> None:
+    from .samples import FIGURE_FORMATS
+
+    if path is not None and Path(path).suffix.lower() not in FIGURE_FORMATS:
+        raise IonactError(f"--plot {path}: the figure's file must end in {', '.join(FIGURE_FORMATS)}")
+
+
+def cmd_design(args: argparse.Namespace) -> int:
     from .adjuster import design_adjuster
-    from .method import example_names, load_method
+    from .method import example_names, keys_help, load_method
+    from .samples import atomic_output
+    from .samples.output import atomic_binary
 
     if args.list_examples:
-        for n in example_names():
-            print(n)
-        return 0
+        print("\n".join(example_names()))
+        return EXIT_OK
     if args.help_keys:
-        from .method import keys_help
-
         print(keys_help())
-        return 0
+        return EXIT_OK
     if (args.method is None) == (args.example is None):
         raise IonactError("give a method file, or --example NAME (see --list-examples)")
+    _check_figure_path(args.plot)
     kw = load_method(args.method if args.method is not None else f"example:{args.example}")
     if args.solve:
         kw["solve"] = args.solve
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")
-        d = design_adjuster(**kw)
-    if args.out:
-        with open(args.out, "w", encoding="utf-8") as fh:
-            json.dump(_jsonable(d.to_dict()), fh, indent=2, ensure_ascii=False)
+    if args.model:
+        kw["model"] = args.model
+    d = design_adjuster(**kw)
     if args.plot:
-        try:
-            d.plot(args.plot)
-        except ImportError:
-            raise IonactError("--plot needs matplotlib: pip install 'ionact[plot]'") from None
-    _emit(args, d.to_dict(), d.report())
+        with atomic_binary(args.plot) as tmp:
+            d.plot().savefig(tmp, format=Path(args.plot).suffix[1:].lower(), dpi=110)
+    if args.out:
+        with atomic_output(args.out, inputs=(args.method,) if args.method else ()) as fh:
+            fh.write(_json_text(d.to_dict()) + "\n")
+    if getattr(args, "json", False):
+        print(_json_text(d.to_dict()))
+    else:
+        print(d.report())
     return d.exit_status
 
 
-def cmd_check(args) -> int:
-    from .samples import check_samples, read_samples_csv, report_to_text, write_report_csv
-
+def _read_design(path: str) -> Any:
     try:
-        with open(args.design, encoding="utf-8") as fh:
-            design = json.load(fh)
+        if path == "-":
+            raw = sys.stdin.buffer.read(MAX_DESIGN_BYTES + 1)
+        else:
+            with open(path, "rb") as fh:
+                raw = fh.read(MAX_DESIGN_BYTES + 1)
     except OSError as exc:
-        raise IonactError(f"cannot read design {args.design}: {exc.strerror or exc}") from None
-    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
-        raise IonactError(f"design {args.design} is not valid JSON ({exc})") from None
-    cols, units, notes = read_samples_csv(args.samples)
-    dil = tuple(float(x) for x in args.dilutions.split(",")) if args.dilutions else (1, 2, 5, 10, 20, 50, 100)
+        raise IonactError(f"cannot read design {path}: {exc.strerror or exc}") from None
+    if len(raw) > MAX_DESIGN_BYTES:
+        raise IonactError(f"design {path} is larger than {MAX_DESIGN_BYTES} bytes; not a design file")
+    try:
+        return json.loads(raw.decode("utf-8"), parse_constant=_no_constants)
+    except (json.JSONDecodeError, UnicodeDecodeError, RecursionError, ValueError) as exc:
+        raise IonactError(f"design {path} is not valid JSON ({str(exc)[:200]})") from None
+
+
+def _no_constants(name: str) -> None:
+    raise ValueError(f"{name} is not allowed in strict JSON")
+
+
+def _dilutions(text: str | None) -> tuple[float, ...]:
+    from .samples import DEFAULT_DILUTIONS
+    from .units import parse_scalar
+
+    if text is None:
+        return tuple(float(x) for x in DEFAULT_DILUTIONS)
+    parts = [p.strip() for p in text.split(",")]
+    if not parts or any(not p for p in parts):
+        raise IonactError(f"--dilutions {text!r}: give factors ≥ 1 separated by commas, e.g. 1,2,5,10")
+    return tuple(parse_scalar(p, "", f"--dilutions factor {p!r}") for p in parts)
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    from .samples import check_csv
+
+    _check_figure_path(args.plot)
+    design = _read_design(args.design)
+    dil = _dilutions(args.dilutions)
     cal = tuple(args.calibration) if args.calibration else None
-    n = len(next(iter(cols.values())))
-    r = check_samples(cols, design, calibration_range=cal, dilutions=dil, units=units,
-                      progress=(n >= 10000 and not args.quiet))
-    for note in notes:
-        print(f"ionact check: note: {note}", file=sys.stderr)
-    if args.out:
-        write_report_csv(r, args.out)
-    if args.plot:
-        try:
-            r.plot(args.plot)
-        except ImportError:
-            raise IonactError("--plot needs matplotlib: pip install 'ionact[plot]'") from None
-    data = {"model": r.model, "counts": r.counts(), "calibration_range_mol_per_l": list(r.calibration_range),
-            "envelope": list(r.envelope), "rows": r.rows()}
-    _emit(args, data, report_to_text(r) + (f"report written to {args.out}" if args.out else ""))
-    return 0
+    to_stdout = args.out == "-"
+    summary = check_csv(args.samples, design, out=None if to_stdout else args.out, plot=args.plot,
+                        calibration_range=cal, dilutions=dil, delimiter=args.delimiter,
+                        decimal_comma=args.decimal_comma, charge_tolerance_percent=args.charge_balance,
+                        keep_rows=bool(args.json) or to_stdout)
+    if to_stdout:
+        _write_rows_to_stdout(summary)
+        print(summary.text(), file=sys.stderr)
+        return EXIT_OK
+    data = {"model": summary.model, "analyte_unit": summary.unit, "counts": summary.counts,
+            "calibration_range_mol_per_l": list(summary.calibration_range), "envelope": list(summary.envelope),
+            "rows": summary.rows_json}
+    _emit(args, data, summary.text() + (f"report written to {args.out}" if args.out else ""), "ionact-batch-report")
+    return EXIT_OK
 
 
-def cmd_demo(args) -> int:
+def _write_rows_to_stdout(summary: Any) -> None:
+    import csv
+
+    from .samples import safe_cell
+
+    w = csv.writer(sys.stdout)
+    rows = summary.rows_json
+    if rows:
+        w.writerow(list(rows[0]))
+        for r in rows:
+            w.writerow([safe_cell(v) if not isinstance(v, float) or v == v else "" for v in r.values()])
+
+
+def cmd_demo(args: argparse.Namespace) -> int:
     from .demo import run
 
     run()
-    return 0
+    return EXIT_OK
 
 
-def _composition_args(p, as_option=False):
+def _composition_args(p: argparse.ArgumentParser, as_option: bool = False) -> None:
     helptext = "KEY=AMOUNT terms: NaCl=0.1, 'Ca^2+=2 mmol/kg', 'NO3-=10 mg/L as N'"
     if as_option:
         p.add_argument("--matrix", dest="terms", nargs="+", default=[], metavar="KEY=AMOUNT",
                        help="the background without the analyte; " + helptext)
     else:
         p.add_argument("terms", nargs="*", help=helptext)
-    p.add_argument("-t", "--temperature", type=float, default=25.0, help="°C (default 25)")
+    p.add_argument("-t", "--temperature", default="25", help="°C, or a unit string such as '77 degF' (default 25)")
     p.add_argument("--balance", help="ion that takes up any charge imbalance, e.g. Cl-")
     p.add_argument("--charge-tolerance", type=float, default=1e-6,
                    help="largest relative charge imbalance accepted without --balance (default 1e-6)")
-    p.add_argument("--json", action="store_true", help="print JSON")
+    p.add_argument("--density", help="'water', or the solution's density (kg/L or a unit string); "
+                   "default: the apparent-molar-volume model")
+    p.add_argument("--json", action="store_true", help="print strict JSON")
+
+
+def _model_arg(p: argparse.ArgumentParser, default: str | None = "auto") -> None:
+    from .models.registry import model_names
+
+    p.add_argument("-m", "--model", default=default, choices=model_names(),
+                   help="activity model" + (f" (default {default})" if default else " (default: the method's)"))
+
+
+_EPILOG = "exit status: 0 success, 1 a check failed (the report is still printed), 2 bad input; --debug and " \
+          "--strict may appear anywhere on the line"
 
 
 def build_parser() -> argparse.ArgumentParser:
-    from .models.registry import model_names
+    from . import __version__
 
-    p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients and "
-                                "ionic strength adjuster design.",
-                                epilog="exit status: 0 success, 1 a check failed (the report is still printed), "
-                                "2 bad input (one line on standard error; --debug shows the traceback)")
+    p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients, ionic strength "
+                                "adjuster design and batch checks for ion-selective electrode methods.",
+                                epilog=_EPILOG)
+    p.add_argument("--version", action="version", version=f"ionact {__version__}")
     p.add_argument("--debug", action="store_true", help="show tracebacks")
-    sub = p.add_subparsers(dest="command", required=True)
+    p.add_argument("--strict", action="store_true", help="turn range warnings into errors")
+    sub = p.add_subparsers(dest="command", required=True, metavar="JOB")
 
-    s = sub.add_parser("strength", help="ionic strength of a composition, or estimated from EC/TDS")
+    def job(name: str, help_: str, example: str) -> argparse.ArgumentParser:
+        return sub.add_parser(name, help=help_, description=help_ + ".", epilog=f"example: {example}\n{_EPILOG}",
+                              formatter_class=argparse.RawDescriptionHelpFormatter)
+
+    s = job("strength", "ionic strength of a composition, or estimated from conductivity or dissolved solids",
+            "ionact strength NaCl=0.1 'CaCl2=2 mmol/kg'   |   ionact strength --conductivity '0.85 mS/cm'")
     _composition_args(s)
-    s.add_argument("--conductivity", type=float, help="electrical conductivity, µS/cm at 25 °C")
-    s.add_argument("--tds", type=float, help="total dissolved solids, mg/L")
-    s.add_argument("--rule", help="rule of thumb: russell, griffin-jurinak (EC) or langelier (TDS)")
+    s.add_argument("--conductivity", help="electrical conductivity at 25 °C: µS/cm, or a unit string ('0.85 mS/cm')")
+    s.add_argument("--tds", help="total dissolved solids: mg/L, or a unit string ('1.2 g/L')")
+    s.add_argument("--rule", help="rule of thumb: russell, griffin-jurinak (conductivity) or langelier (TDS)")
     s.set_defaults(func=cmd_strength)
 
-    g = sub.add_parser("gamma", help="activity coefficients of a composition by a model")
+    g = job("gamma", "activity coefficients of a composition by a model",
+            "ionact gamma NaCl=0.5 --model pitzer --json")
     _composition_args(g)
-    g.add_argument("-m", "--model", default="auto", choices=model_names(), help="activity model (default auto)")
+    _model_arg(g)
     g.add_argument("--missing", default="error", help="missing parameters: error, zero, or a fallback model")
     g.add_argument("--compare", action="store_true", help="every model side by side with their spread")
     g.set_defaults(func=cmd_gamma)
 
-    c = sub.add_parser("convert", help="activity <-> concentration of an analyte in a matrix")
+    c = job("convert", "activity <-> concentration of an analyte in a matrix",
+            "ionact convert F- --px 4 --matrix NaCl=0.1 --unit mg/L")
     c.add_argument("ion", help="the analyte, e.g. F- or Ca^2+")
     _composition_args(c, as_option=True)
-    c.add_argument("--activity", type=float, help="molal-scale activity to convert to a concentration")
-    c.add_argument("--px", type=float, help="pX = -log10 a to convert to a concentration")
+    c.add_argument("--activity", help="molal-scale activity to convert to a concentration")
+    c.add_argument("--px", help="pX = -log10 a to convert to a concentration")
     c.add_argument("--concentration", help="concentration to convert to an activity, e.g. '19 mg/L'")
     c.add_argument("--counter-ion", help="ion accompanying the analyte (default Cl- or Na+)")
-    c.add_argument("-m", "--model", default="auto", choices=model_names(), help="activity model (default auto)")
+    _model_arg(c)
     c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
     c.set_defaults(func=cmd_convert)
 
-    de = sub.add_parser("design", help="design or evaluate an ionic strength adjuster from a method file",
-                        description="Design or evaluate an ionic strength adjuster from a method file. Exit status: "
-                        "0 every check ok or warning, 1 a check failed (the report is still printed), 2 bad input.",
-                        epilog="example: ionact design --example nitrate_irrigation --out design.json")
-    de.add_argument("method", nargs="?", help="METHOD.toml (keys documented in the README)")
+    de = job("design", "design or evaluate an ionic strength adjuster from a method file",
+             "ionact design --example nitrate_irrigation --out design.json --plot design.png")
+    de.add_argument("method", nargs="?", help="METHOD.toml (keys: ionact design --help-keys)")
     de.add_argument("--example", help="use a method file shipped with ionact (see --list-examples)")
     de.add_argument("--list-examples", action="store_true", help="list the shipped method files")
-    de.add_argument("--solve", choices=["stock", "ratio", "none"], help="override the file's solve mode")
-    de.add_argument("--json", action="store_true", help="print the design as JSON")
-    de.add_argument("--out", help="also write the design JSON to this file (input for 'ionact check')")
-    de.add_argument("--plot", help="write a figure of the design to this PNG file")
     de.add_argument("--help-keys", action="store_true", help="list the method-file tables and keys")
+    de.add_argument("--solve", choices=["stock", "ratio", "none"], help="override the file's solve mode")
+    _model_arg(de, default=None)
+    de.add_argument("--json", action="store_true", help="print the design as strict JSON")
+    de.add_argument("--out", help="also write the design file (JSON) here (input for 'ionact check')")
+    de.add_argument("--plot", help="write the design figure here (.png, .pdf or .svg)")
     de.set_defaults(func=cmd_design)
 
-    ch = sub.add_parser("check", help="check a batch of samples against an adjuster design before measuring")
-    ch.add_argument("samples", help="SAMPLES.csv (columns documented in the README)")
-    ch.add_argument("--design", required=True, help="DESIGN.json written by 'ionact design --out'")
-    ch.add_argument("--out", help="write the per-sample report to this CSV")
-    ch.add_argument("--plot", help="write a figure of the batch to this PNG file")
+    ch = job("check", "check a batch of samples against an adjuster design before measuring",
+             "ionact check SAMPLES.csv --design design.json --out REPORT.csv --plot batch.png")
+    ch.add_argument("samples", help="SAMPLES.csv ('-' for standard input; columns documented in the README)")
+    ch.add_argument("--design", required=True, help="DESIGN.json written by 'ionact design --out' ('-': stdin)")
+    ch.add_argument("--out", help="write the per-sample report CSV here ('-' for standard output)")
+    ch.add_argument("--plot", help="write the batch figure here (.png, .pdf or .svg)")
     ch.add_argument("--calibration", nargs=2, metavar=("LOW", "HIGH"), help="calibrated range, e.g. "
                     "'0.5 mg/L as N' '30 mg/L as N' (default: the design's standards)")
     ch.add_argument("--dilutions", help="allowed dilution factors, comma-separated (default 1,2,5,10,20,50,100)")
-    ch.add_argument("--json", action="store_true", help="print the results as JSON")
-    ch.add_argument("--quiet", action="store_true", help="no progress bar")
+    ch.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
+    ch.add_argument("--decimal-comma", action="store_true", default=None,
+                    help="read decimal commas (semicolon- or tab-separated files)")
+    ch.add_argument("--charge-balance", type=float, default=5.0,
+                    help="largest ion-balance error in %% of total equivalents for rows with ion columns (default 5)")
+    ch.add_argument("--json", action="store_true", help="print the results as strict JSON")
     ch.set_defaults(func=cmd_check)
 
-    d = sub.add_parser("demo", help="run the built-in invented scenario")
+    d = job("demo", "run the built-in invented scenario", "ionact demo")
     d.set_defaults(func=cmd_demo)
     return p
 
 
-def _one_line_warnings(message, category, filename, lineno, file=None, line=None):
+def _one_line_warnings(message: Warning | str, category: type[Warning], filename: str, lineno: int,
+                       file: Any = None, line: str | None = None) -> None:
     print(f"ionact: {category.__name__}: {message}", file=sys.stderr if file is None else file)
 
 
-def main(argv: list[str] | None = None) -> int:
-    argv = sys.argv[1:] if argv is None else argv
-    parser = build_parser()
-    args = parser.parse_args(argv)
+def _error(argv: Sequence[str], command: str, exc: BaseException) -> None:
+    msg = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
+    if "--json" in argv:
+        print(json.dumps({"format": ERROR_FORMAT, "version": 1, "command": command, "error": type(exc).__name__,
+                          "message": msg, "exit_status": EXIT_USER}, ensure_ascii=False), file=sys.stderr)
+    else:
+        print(f"ionact {command}: error: {msg}", file=sys.stderr)
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    argv = list(sys.argv[1:] if argv is None else argv)
+    flags = {f for f in _GLOBAL_FLAGS if f in argv}
+    rest = [a for a in argv if a not in _GLOBAL_FLAGS]
+    args = build_parser().parse_args(rest)
+    args.debug, args.strict_mode = "--debug" in flags, "--strict" in flags
     previous = warnings.showwarning
     if not args.debug:
         warnings.showwarning = _one_line_warnings
     try:
-        return int(args.func(args) or 0)
+        from .errors import strict
+
+        with strict(args.strict_mode):
+            return int(args.func(args) or 0)
+    except BrokenPipeError:
+        _quiet_stdout()
+        return EXIT_OK
+    except KeyboardInterrupt:
+        if args.debug:
+            raise
+        print("ionact: interrupted", file=sys.stderr)
+        return EXIT_INTERRUPTED
     except (IonactError, OSError) as exc:
         if args.debug:
             raise
-        msg = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        print(f"ionact {args.command}: error: {msg}", file=sys.stderr)
+        _error(argv, args.command, exc)
         return EXIT_USER
     finally:
         warnings.showwarning = previous
+
+
+def _quiet_stdout() -> None:
+    """After a closed pipe: point stdout at /dev/null so the interpreter's final flush is quiet."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
 
 
 if __name__ == "__main__":  # pragma: no cover

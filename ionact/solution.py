@@ -15,24 +15,17 @@ solutions, ions without a tabulated volume).
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
 
 from . import water
 from .density import check_density, solution_density, water_per_litre
-from .errors import InputError, warn_range
-from .references import cite
+from .errors import InputError
 from .species import Ion, Salt, resolve_ion
 from .units import MOLAL, Amount, parse_amount
 
-__all__ = [
-    "Solution",
-    "IonicStrengthEstimate",
-    "ionic_strength_from_conductivity",
-    "ionic_strength_from_tds",
-]
+__all__ = ["Solution"]
 
 DEFAULT_CHARGE_TOLERANCE = 1e-6  # relative: |Σ z m| / (½ Σ |z| m)
 
@@ -579,91 +572,3 @@ def _salt_amount(salt: Salt, value: object, basis: str) -> Amount:
 def _out(x):
     x = np.asarray(x)
     return float(x) if x.ndim == 0 else x
-
-
-# -- ionic strength from field measurements ---------------------------------------------
-_EC_RULES = {
-    "russell": (1.6e-5, "russell1976-mem"),
-    "griffin-jurinak": (1.3e-5, "griffin-jurinak1973-mem"),
-}
-_TDS_RULES = {"langelier": (2.5e-5, "langelier1936-mem")}
-EC_FRESH_LIMIT = 5000.0  # µS/cm; beyond it the rules of thumb are not for "fresh" water (common practice)
-TDS_FRESH_LIMIT = 3000.0  # mg/L (common practice)
-
-
-@dataclass(frozen=True, slots=True)
-class IonicStrengthEstimate:
-    """An ionic strength estimated by a rule of thumb, with the rule named.
-
-    Attributes
-    ----------
-    value : float or ndarray
-        mol/L (the rules do not distinguish molar from molal; fresh waters are dilute).
-    rule : str
-        The rule's name, e.g. ``"russell"``.
-    coefficient : float
-        The factor applied to the measurement.
-    source : str
-        Full citation.
-    """
-
-    value: float | np.ndarray
-    rule: str
-    coefficient: float
-    source: str
-
-    def __float__(self) -> float:
-        return float(self.value)
-
-
-def _estimate(x, rules, rule: str, what: str, unit: str, limit: float) -> IonicStrengthEstimate:
-    if rule not in rules:
-        raise InputError(f"unknown {what} rule {rule!r}; allowed: {', '.join(sorted(rules))}")
-    arr = np.asarray(x, dtype=float)
-    if np.any(arr < 0) or np.any(np.isinf(arr)):
-        bad = arr[(arr < 0) | np.isinf(arr)].flat[0]
-        raise InputError(f"{what} {bad:g} {unit} is negative or infinite; allowed: finite ≥ 0")
-    finite = arr[np.isfinite(arr)]
-    if finite.size and finite.max() > limit:
-        warn_range(
-            f"ionic strength from {what}: {finite.max():g} {unit} is above {limit:g} {unit}, "
-            f"where the '{rule}' rule of thumb for fresh waters no longer holds",
-        )
-    k, src = rules[rule]
-    return IonicStrengthEstimate(_out(k * arr), rule, k, cite(src))
-
-
-def ionic_strength_from_conductivity(conductivity_us_cm, rule: str = "russell") -> IonicStrengthEstimate:
-    """Estimate ionic strength from electrical conductivity (µS/cm at 25 °C).
-
-    Parameters
-    ----------
-    conductivity_us_cm : float or array_like
-        µS/cm at 25 °C.
-    rule : {"russell", "griffin-jurinak"}
-        I ≈ 1.6e-5 × EC (Russell 1976) or I ≈ 1.3e-5 × EC (Griffin & Jurinak 1973);
-        rules of thumb for fresh waters.
-
-    Warns
-    -----
-    ValidityRangeWarning
-        Above 5000 µS/cm (common practice: no longer a fresh water).
-
-    Examples
-    --------
-    >>> e = ionic_strength_from_conductivity(500.0)
-    >>> round(e.value, 6), e.rule
-    (0.008, 'russell')
-    """
-    return _estimate(conductivity_us_cm, _EC_RULES, rule, "conductivity", "µS/cm", EC_FRESH_LIMIT)
-
-
-def ionic_strength_from_tds(tds_mg_l, rule: str = "langelier") -> IonicStrengthEstimate:
-    """Estimate ionic strength from total dissolved solids (mg/L): I ≈ 2.5e-5 × TDS (Langelier 1936).
-
-    Examples
-    --------
-    >>> round(ionic_strength_from_tds(400.0).value, 6)
-    0.01
-    """
-    return _estimate(tds_mg_l, _TDS_RULES, rule, "total dissolved solids", "mg/L", TDS_FRESH_LIMIT)

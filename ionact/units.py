@@ -138,8 +138,9 @@ def unit_kind(unit: str) -> tuple[str, float]:
                     "meq/L, 'mg/L as N', 'mg/L as CaCO3')")
 
 
+@lru_cache(maxsize=256)
 def _reference_factor(ion: Ion, ref: str) -> float:
-    """Moles of ion per gram of the reference in "mg/L as REF"."""
+    """Moles of ion per gram of the reference in "mg/L as REF" (cached: formula parsing is costly)."""
     if ref == "CaCO3":
         if ion.charge == 0:
             raise UnitError(f"'as CaCO3' needs a charged species; {ion.name} is neutral")

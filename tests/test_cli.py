@@ -61,7 +61,8 @@ def test_convert(capsys):
     rc, out, _ = run(capsys, "convert", "F-", "--px", "4", "--matrix", "NaCl=0.1", "--unit", "mg/L", "--json")
     data = json.loads(out)
     assert rc == 0 and data["activity"] == pytest.approx(1e-4) and data["counter_ion"] == "Na+"
-    assert data["concentration"]["mg/L"] > 1.9
+    assert data["format"] == "ionact-conversion"
+    assert data["concentrations"][0]["unit"] == "mg/L" and data["concentrations"][0]["value"] > 1.9
     rc, out, _ = run(capsys, "convert", "NO3-", "--concentration", "10 mg/L as N", "--model", "davies")
     assert rc == 0 and "γ" in out
     rc, _, err = run(capsys, "convert", "Na+", "--activity", "0.01", "--counter-ion", "K+")

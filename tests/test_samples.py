@@ -14,10 +14,10 @@ from ionact.samples import (
     DILUTE,
     INSIDE,
     INVALID,
-    _safe_cell,
     check_samples,
     read_report_csv,
     read_samples_csv,
+    safe_cell,
     write_report_csv,
 )
 
@@ -147,19 +147,21 @@ def test_csv_round_trip(design, tmp_path):
 
 
 def test_safe_cells():
-    assert _safe_cell(-0.5) == "-0.5"  # numbers stay numbers
-    assert _safe_cell("@SUM(A1)") == "'@SUM(A1)"
-    assert _safe_cell(float("nan")) == ""
+    assert safe_cell(-0.5) == "-0.5"  # numbers stay numbers
+    assert safe_cell("@SUM(A1)") == "'@SUM(A1)"
+    assert safe_cell(float("nan")) == ""
 
 
 def test_units_row_and_ragged_csv(tmp_path):
     p = tmp_path / "s.csv"
     p.write_text("sample_id,analyte,conductivity\nunits,mg/L as N,uS/cm\na,5,300\nb,6\nc,7,400,extra\n",
                  encoding="utf-8")
-    cols, units, notes = read_samples_csv(p)
-    assert units == {"analyte": "mg/L as N", "conductivity": "uS/cm"}
-    assert cols["conductivity"] == ["300", "", "400"]
-    assert notes and "row 5" in notes[0]
+    t = read_samples_csv(p)
+    assert t.units == {"analyte": "mg/L as N", "conductivity": "uS/cm"}
+    assert t.columns["conductivity"] == ["300", "", "400"]
+    # rows with the wrong number of cells are kept, in place, and marked — never padded or cut silently
+    assert t.row_errors[0] is None and "2 cells for 3 columns" in t.row_errors[1]
+    assert "4 cells for 3 columns" in t.row_errors[2] and t.lines == [3, 4, 5]
     with pytest.raises(ia.InputError, match="UTF-8"):
         q = tmp_path / "latin.csv"
         q.write_bytes("sample_id,analyte\nRío,5\n".encode("latin-1"))
@@ -177,10 +179,9 @@ def test_plot(design, tmp_path):
     assert path.stat().st_size > 1000
 
 
-def test_progress_bar_on_stderr(design, capsys):
+def test_progress_is_quiet_when_not_a_terminal(design, capsys):
     check_samples({"analyte": [1e-4] * 5, "ionic_strength": [0.01] * 5}, design, progress=True)
-    err = capsys.readouterr().err
-    assert "checking samples" in err and "5/5" in err
+    assert capsys.readouterr().err == ""
 
 
 def test_design_figure_for_evaluated_design(design, tmp_path):

@@ -66,9 +66,16 @@ class RecipeLine:
 
 
 def _num(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> float:
-    if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(float(v)) or not lo <= v <= hi:
-        raise InputError(f"design field {what} {v!r} must be a finite number in {lo:g}–{hi:g}")
-    return float(v)
+    bad = InputError(f"design field {what} {str(v)[:40]!r} must be a finite number in {lo:g}–{hi:g}")
+    if isinstance(v, bool) or not isinstance(v, int | float):
+        raise bad
+    try:
+        f = float(v)
+    except OverflowError:
+        raise bad from None
+    if not math.isfinite(f) or not lo <= f <= hi:
+        raise bad
+    return f
 
 
 def _opt(v: Any, what: str) -> float | None:

@@ -18,9 +18,10 @@ import numpy as np
 
 from ..density import water_per_litre
 from ..errors import InputError
+from ..estimates import ionic_strength_from_conductivity, ionic_strength_from_tds
 from ..models.registry import Batch
 from ..models.resolver import Evaluation, ModelChoice, evaluate
-from ..solution import Solution, ionic_strength_from_conductivity, ionic_strength_from_tds
+from ..solution import Solution
 from ..species import Ion, Salt, resolve_ion
 from ..units import MOLAR, parse_amount
 from .inputs import SamplePopulation, StockComponent, pair_of

@@ -124,6 +124,10 @@ def make_options(
     """
     if missing not in MISSING_POLICIES:
         raise InputError(f"missing={missing!r}: allowed 'error', 'zero', or a fallback model name")
+    if sizes is not None and not isinstance(sizes, Mapping):
+        raise InputError(f"sizes {str(sizes)[:40]} must be a mapping of ion -> ion-size parameter (Å)")
+    if setschenow is not None and not isinstance(setschenow, Mapping | int | float):
+        raise InputError(f"setschenow {str(setschenow)[:40]} must be a number or a mapping of species -> k")
     sz = {}
     for k, v in (sizes or {}).items():
         name = Ion.parse(k).name

@@ -1,0 +1,272 @@
+"""Batch reports out: spreadsheet-safe CSV written safely, a readable text table, and the
+streaming check of a sample file of any length.
+
+A report is written to a temporary file in the same folder and renamed over the target
+only when everything asked for (the figure too) has been produced, so a failed run never
+leaves a half-written report over a good one. ``--out`` may not be the input file.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import os
+import tempfile
+from collections.abc import Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import IO, Any
+
+import numpy as np
+
+from ..errors import InputError
+from .check import DEFAULT_DILUTIONS, check_samples
+from .columns import DEFAULT_CHARGE_BALANCE_PERCENT
+from .result import STATUSES, SampleCheck
+from .table import CHUNK_ROWS, iter_samples_csv
+
+__all__ = ["write_report_csv", "read_report_csv", "report_to_text", "check_csv", "BatchSummary", "safe_cell",
+           "printable", "FIGURE_FORMATS", "atomic_output"]
+
+FIGURE_FORMATS = (".png", ".pdf", ".svg")
+_TEXT_COLUMNS = ("sample_id", "status", "reason", "ionic_strength_source")
+
+
+def safe_cell(v: Any) -> str:
+    """Spreadsheet-safe text: numbers stay numbers; text that would start a formula is neutralised."""
+    if isinstance(v, float | int | np.floating | np.integer) and not isinstance(v, bool):
+        f = float(v)
+        return "" if math.isnan(f) else repr(f)
+    s = "" if v is None else str(v)
+    if s and s[0] in "=+-@\t\r":
+        return "'" + s
+    return s
+
+
+def printable(s: str) -> str:
+    """Text with terminal control characters shown escaped (\\x1b …), for reports on a screen."""
+    return "".join(c if c.isprintable() else f"\\x{ord(c):02x}" for c in s)
+
+
+def _num_column(values: np.ndarray) -> list[str]:
+    """Shortest round-trip text of each float (Python's repr); empty for NaN."""
+    return ["" if x != x else x_repr for x, x_repr in zip(values.tolist(), map(repr, values.tolist()), strict=True)]
+
+
+_FORMULA = frozenset("=+-@\t\r")
+
+
+def _text_column(values: Any) -> list[str]:
+    return ["'" + s if s and s[0] in _FORMULA else s for s in ("" if v is None else str(v) for v in values)]
+
+
+def _rows_text(result: SampleCheck) -> tuple[list[str], Iterator[tuple[str, ...]]]:
+    columns = [(h, _num_column(np.asarray(v, dtype=float)) if isinstance(v, np.ndarray) else _text_column(v))
+               for h, v in result.columns()]
+    return [h for h, _ in columns], zip(*(v for _, v in columns), strict=True)
+
+
+@contextmanager
+def atomic_output(path: Any, *, inputs: tuple[Any, ...] = ()) -> Iterator[IO[str]]:
+    """A text file that replaces ``path`` only if the block finishes without an error."""
+    target = Path(path)
+    for inp in inputs:
+        try:
+            if inp != "-" and Path(inp).exists() and target.exists() and os.path.samefile(inp, target):
+                raise InputError(f"--out {target} is the input file; choose another name")
+        except OSError:
+            continue
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(f"cannot write {target}: folder {folder} does not exist")
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{target.name}.", suffix=".part")
+    ok = False
+    try:
+        with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
+            yield fh
+        os.replace(tmp, target)
+        ok = True
+    finally:
+        if not ok and os.path.exists(tmp):
+            os.unlink(tmp)
+
+
+def write_report_csv(result: SampleCheck, path_or_file: Any) -> None:
+    """Write the per-sample report as CSV (columns documented in the README).
+
+    Numbers are written in their shortest exact form, so reading the file back gives the
+    same floats; text that a spreadsheet would take for a formula is neutralised. A path
+    is written through a temporary file and renamed when complete.
+    """
+    header, rows = _rows_text(result)
+    if isinstance(path_or_file, str | bytes) or hasattr(path_or_file, "__fspath__"):
+        with atomic_output(path_or_file) as fh:
+            w = csv.writer(fh)
+            w.writerow(header)
+            w.writerows(rows)
+        return
+    w = csv.writer(path_or_file)
+    w.writerow(header)
+    w.writerows(rows)
+
+
+def read_report_csv(path: Any) -> list[dict[str, Any]]:
+    """Read a report written by :func:`write_report_csv` back into rows (numbers as floats)."""
+    with open(path, encoding="utf-8", newline="") as fh:
+        out = []
+        for row in csv.DictReader(fh):
+            r: dict[str, Any] = {}
+            for k, v in row.items():
+                if k in _TEXT_COLUMNS:
+                    r[k] = v[1:] if v.startswith("'") and v[1:2] in ("=", "+", "-", "@", "\t", "\r") else v
+                else:
+                    r[k] = float(v) if v != "" else float("nan")
+            out.append(r)
+    return out
+
+
+def _table_lines(result: SampleCheck, limit: int) -> list[str]:
+    u = result.unit
+    lines = [f"{'sample':<16}{'status':<30}{'dil.':>6}{'analyte ' + u:>20}{'I mol/kg':>10}{'err mV':>8}  reason"]
+    for r in result.rows()[:limit]:
+        d = "" if math.isnan(r["dilution"]) else f"×{r['dilution']:g}"
+        a = r[f"analyte [{u}]"]
+        lines.append(f"{printable(r['sample_id'])[:15]:<16}{r['status']:<30}{d:>6}{a:>20.4g}"
+                     f"{r['ionic_strength [mol/kg]']:>10.4g}{r['gamma_error [mV]']:>8.3g}  {printable(r['reason'])}")
+    return lines
+
+
+def report_to_text(result: SampleCheck, limit: int = 50) -> str:
+    """A readable table of the first ``limit`` samples plus the summary (control characters escaped)."""
+    buf = io.StringIO()
+    buf.write("\n".join(_table_lines(result, limit)) + "\n")
+    if len(result) > limit:
+        buf.write(f"… {len(result) - limit} more rows in the CSV report\n")
+    buf.write("\n" + result.summary() + "\n")
+    return buf.getvalue()
+
+
+@dataclass
+class BatchSummary:
+    """What a streamed check keeps: counts, the first rows as text, and the figure's points."""
+
+    counts: dict[str, int] = field(default_factory=lambda: dict.fromkeys(STATUSES, 0))
+    model: str = ""
+    unit: str = "mol/L"
+    calibration_range: tuple[float, float] = (0.0, 0.0)
+    envelope: tuple[float, float] = (0.0, 0.0)
+    head: list[str] = field(default_factory=list)
+    rows_json: list[dict[str, Any]] = field(default_factory=list)
+    total: int = 0
+    _points: list[tuple[np.ndarray, np.ndarray, np.ndarray, float]] = field(default_factory=list, repr=False)
+
+    def add(self, r: SampleCheck, keep_rows: bool, limit: int) -> None:
+        for k, v in r.counts().items():
+            self.counts[k] += v
+        self.model, self.unit = r.model, r.unit
+        self.calibration_range, self.envelope = r.calibration_range, r.envelope
+        if len(self.head) < limit + 1:
+            lines = _table_lines(r, limit - max(len(self.head) - 1, 0))
+            self.head += lines if not self.head else lines[1:]
+        if keep_rows:
+            self.rows_json += r.to_dict()["rows"]
+        status = np.array([STATUSES.index(s) for s in r.status], dtype=np.int8)
+        self._points.append((np.asarray(r.ionic_strength), np.asarray(r.analyte), status, r.unit_factor))
+        self.total += len(r)
+
+    def text(self, limit: int = 50) -> str:
+        out = "\n".join(self.head[: limit + 1]) + "\n"
+        if self.total > limit:
+            out += f"… {self.total - limit} more rows in the CSV report\n"
+        out += f"\n{self.total} samples checked with model {self.model}:\n"
+        out += "\n".join(f"  {s:<30} {self.counts[s]}" for s in STATUSES) + "\n"
+        return out
+
+    def figure(self) -> Any:
+        """The batch figure from the kept points (the same as :meth:`SampleCheck.plot`)."""
+        n = self.total
+        i = np.concatenate([p[0] for p in self._points]) if self._points else np.zeros(0)
+        a = np.concatenate([p[1] for p in self._points]) if self._points else np.zeros(0)
+        s = np.concatenate([p[2] for p in self._points]) if self._points else np.zeros(0, dtype=np.int8)
+        f = self._points[0][3] if self._points else 1.0
+        fake = SampleCheck(tuple([""] * n), tuple(STATUSES[k] for k in s), tuple([""] * n), np.full(n, np.nan), i,
+                           tuple([""] * n), a, np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan),
+                           np.full(n, np.nan), (), {}, self.calibration_range, self.envelope, self.model, self.unit, f)
+        return fake.plot()
+
+
+def _mark_earlier_duplicates(table: Any, seen: dict[str, int], offset: int) -> None:
+    ids = table.columns.get("sample_id")
+    if ids is None:
+        return
+    for i, raw in enumerate(ids):
+        sid = raw.strip()
+        if not sid:
+            continue
+        if sid in seen and table.row_errors[i] is None:
+            table.row_errors[i] = f"duplicate sample id {sid!r} (first at row {seen[sid] + 1})"
+        seen.setdefault(sid, offset + i)
+
+
+def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, calibration_range: Any = None,
+              dilutions: Any = DEFAULT_DILUTIONS, analyte_unit: str | None = None, units: Any = None,
+              rule: Any = None, background: str | None = None,
+              charge_tolerance_percent: float = DEFAULT_CHARGE_BALANCE_PERCENT, delimiter: str | None = None,
+              decimal_comma: bool | None = None, keep_rows: bool = False, limit: int = 50,
+              chunk_rows: int = CHUNK_ROWS) -> BatchSummary:
+    """Check a sample file of any length in chunks, writing the report as it goes.
+
+    Memory does not grow with the file: each chunk is read, checked and written; the
+    summary keeps the counts, the first ``limit`` rows as text and the figure's points.
+    The report (and figure) replace their targets only when all of them are complete.
+    """
+    if plot is not None and Path(plot).suffix.lower() not in FIGURE_FORMATS:
+        raise InputError(f"--plot {plot}: the figure's file must end in {', '.join(FIGURE_FORMATS)}")
+    summary = BatchSummary()
+    seen: dict[str, int] = {}
+    writer_cm = atomic_output(out, inputs=(path,)) if out is not None else None
+    fh = writer_cm.__enter__() if writer_cm is not None else None
+    try:
+        offset = 0
+        for table in iter_samples_csv(path, delimiter=delimiter, decimal_comma=decimal_comma, chunk_rows=chunk_rows):
+            _mark_earlier_duplicates(table, seen, offset)
+            r = check_samples(table, design, calibration_range=calibration_range, dilutions=dilutions,
+                              analyte_unit=analyte_unit, units=units, rule=rule, background=background,
+                              charge_tolerance_percent=charge_tolerance_percent, _offset=offset)
+            if fh is not None:
+                header, rows = _rows_text(r)
+                w = csv.writer(fh)
+                if offset == 0:
+                    w.writerow(header)
+                w.writerows(rows)
+            summary.add(r, keep_rows, limit)
+            offset += len(r)
+        if plot is not None:
+            with atomic_binary(plot) as tmp:
+                summary.figure().savefig(tmp, format=Path(plot).suffix[1:].lower(), dpi=110)
+    except BaseException as exc:
+        if writer_cm is not None:
+            writer_cm.__exit__(type(exc), exc, exc.__traceback__)
+        raise
+    if writer_cm is not None:
+        writer_cm.__exit__(None, None, None)
+    return summary
+
+
+@contextmanager
+def atomic_binary(path: Any) -> Iterator[str]:
+    """A temporary path next to ``path`` that replaces it when the block succeeds."""
+    target = Path(path)
+    folder = target.parent if str(target.parent) else Path(".")
+    if not folder.is_dir():
+        raise InputError(f"cannot write {target}: folder {folder} does not exist")
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{target.name}.", suffix=".part")
+    os.close(fd)
+    try:
+        yield tmp
+        os.replace(tmp, target)
+    finally:
+        if os.path.exists(tmp):
+            os.unlink(tmp)

@@ -1,0 +1,275 @@
+"""Reading a batch of samples from CSV: strict, bounded, streaming, and losing no row.
+
+Rules (documented in the README):
+
+- UTF-8 text (a byte-order mark is allowed). The delimiter is read off the header line
+  (comma, semicolon or tab) unless given; a header that splits on more than one of them
+  is an error asking for ``delimiter=``.
+- Every data line is one row: a quoted field that runs past its line, or past the cell
+  size limit, is an error naming the line. A row with the wrong number of cells is kept
+  and marked invalid with that reason — never padded, cut or re-aligned.
+- Decimal commas are read only in semicolon- or tab-separated files: always with
+  ``decimal_comma=True``, never with ``False``, and by default only when unambiguous (a
+  comma followed by other than exactly three digits; "1,234" is marked ambiguous).
+- A units row (first cell ``units``, every other non-empty cell a unit) is read only
+  right under the header; a sample named "units" with numbers stays a sample.
+- Limits: lines of at most 64 KiB, 1000 columns, cells of 1000 characters; a file that
+  breaks them (``/dev/zero``) is a one-line error, not a memory error.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+import sys
+from collections.abc import Iterator
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import IO, Any
+
+from ..errors import InputError
+
+__all__ = ["SampleTable", "read_samples_csv", "iter_samples_csv", "MAX_LINE_BYTES", "MAX_COLUMNS", "MAX_CELL",
+           "DELIMITERS"]
+
+MAX_LINE_BYTES = 64 * 1024
+MAX_COLUMNS = 1000
+MAX_CELL = 1000
+DELIMITERS = {",": "comma", ";": "semicolon", "\t": "tab"}
+# a cell of a units row: letters first (a unit, not a number), e.g. "mg/L as N", "uS/cm", "µS/cm"
+_RE_UNIT_CELL = re.compile(r"[A-Za-zµμ°][A-Za-z0-9µμ°/ .]*")
+CHUNK_ROWS = 20_000
+
+
+@dataclass(frozen=True)
+class SampleTable:
+    """Rows of a sample file as text cells, with what the reader found out about them.
+
+    Attributes
+    ----------
+    columns : dict
+        Header -> list of cell texts, one per row (rows in file order).
+    units : dict
+        Column name -> unit from a units row (headers may carry their own "[unit]").
+    row_errors : list of str or None
+        Per row, why the reader could not take it (wrong number of cells), else None.
+    lines : list of int
+        The file line of each row.
+    delimiter : str
+    decimal_comma : bool or None
+        True/False as given, None for "when unambiguous" (semicolon and tab files only).
+    """
+
+    columns: dict[str, list[str]]
+    units: dict[str, str] = field(default_factory=dict)
+    row_errors: list[str | None] = field(default_factory=list)
+    lines: list[int] = field(default_factory=list)
+    delimiter: str = ","
+    decimal_comma: bool | None = None
+    source: str = ""
+
+    def __len__(self) -> int:
+        return len(self.row_errors)
+
+
+class _LineReader:
+    """Lines of at most MAX_LINE_BYTES from a text stream, with their numbers."""
+
+    def __init__(self, fh: IO[str], src: str) -> None:
+        self.fh = fh
+        self.src = src
+        self.number = 0
+
+    def next(self) -> str | None:
+        line = self.fh.readline(MAX_LINE_BYTES + 1)
+        if line == "":
+            return None
+        self.number += 1
+        if len(line) > MAX_LINE_BYTES and not line.endswith("\n"):
+            raise InputError(f"{self.src}: line {self.number} is longer than {MAX_LINE_BYTES} characters "
+                             "(not a sample table?)")
+        if "\x00" in line:
+            raise InputError(f"{self.src}: line {self.number} contains NUL bytes (not a text file?)")
+        return line
+
+
+def _cells(line: str, delimiter: str, src: str, number: int) -> list[str]:
+    try:
+        rows = list(csv.reader([line], delimiter=delimiter, strict=True))
+    except csv.Error as exc:
+        raise InputError(f"{src}: line {number}: {exc} — a quoted field runs past its line (a stray quote?)") from None
+    cells = rows[0] if rows else []
+    if len(cells) > MAX_COLUMNS:
+        raise InputError(f"{src}: line {number} has {len(cells)} cells; at most {MAX_COLUMNS} columns are read")
+    for c in cells:
+        if len(c) > MAX_CELL:
+            raise InputError(f"{src}: line {number} has a cell of {len(c)} characters; at most {MAX_CELL} are read")
+    return cells
+
+
+def _delimiter(header: str, src: str) -> str:
+    counts = {d: len(_cells(header, d, src, 1)) for d in DELIMITERS}
+    splitting = [d for d, n in counts.items() if n > 1]
+    if len(splitting) == 1:
+        return splitting[0]
+    if not splitting:
+        return ","
+    raise InputError(f"{src}: the header splits on more than one delimiter "
+                     f"({', '.join(DELIMITERS[d] for d in splitting)}); pass delimiter=")
+
+
+def _header(cells: list[str], src: str) -> list[str]:
+    header = [h.strip() for h in cells]
+    if not any(header):
+        raise InputError(f"{src}: the first row (the header) is empty")
+    seen: set[str] = set()
+    dup: set[str] = set()
+    for h in header:
+        if h and h in seen:
+            dup.add(h)
+        seen.add(h)
+    if dup:
+        raise InputError(f"{src}: duplicate column names {sorted(dup)}")
+    if "" in header:
+        raise InputError(f"{src}: column {header.index('') + 1} has no name in the header")
+    return header
+
+
+def _is_units_row(cells: list[str], header: list[str]) -> bool:
+    if not cells or cells[0].strip().lower() != "units" or len(cells) != len(header):
+        return False
+    return all(_RE_UNIT_CELL.fullmatch(c.strip()) for c in cells[1:] if c.strip())
+
+
+def _open(path: Any, src: str) -> tuple[IO[str], bool]:
+    if path == "-":
+        return io.TextIOWrapper(sys.stdin.buffer, encoding="utf-8-sig", newline=""), False
+    if hasattr(path, "read") and not isinstance(path, str | Path):
+        return path, False
+    try:
+        p = Path(path)
+        if p.is_dir():
+            raise InputError(f"cannot read {src}: it is a folder")
+        return open(p, encoding="utf-8-sig", newline=""), True
+    except OSError as exc:
+        raise InputError(f"cannot read {src}: {exc.strerror or exc}") from None
+
+
+def iter_samples_csv(path: Any, *, delimiter: str | None = None, decimal_comma: bool | None = None,
+                     chunk_rows: int = CHUNK_ROWS) -> Iterator[SampleTable]:
+    """Read a sample file in chunks of ``chunk_rows`` rows (memory does not grow with the file).
+
+    Raises
+    ------
+    InputError
+        Unreadable, not UTF-8, empty, no header, a delimiter that cannot be told, a stray
+        quote or a line/cell/column beyond the limits (naming the line).
+    """
+    src = "standard input" if path == "-" else str(path)
+    if delimiter is not None and delimiter not in DELIMITERS:
+        raise InputError(f"delimiter {delimiter!r} must be one of comma, semicolon or tab")
+    if decimal_comma is not None and not isinstance(decimal_comma, bool):
+        raise InputError(f"decimal_comma {decimal_comma!r} must be True, False or None")
+    fh, own = _open(path, src)
+    try:
+        yield from _chunks(_LineReader(fh, src), src, delimiter, decimal_comma, chunk_rows)
+    except UnicodeDecodeError:
+        raise InputError(f"{src} is not UTF-8 text; save it as UTF-8 CSV") from None
+    finally:
+        if own:
+            fh.close()
+
+
+def _parse_block(lines: list[str], first: int, delim: str, src: str) -> list[tuple[int, list[str]]]:
+    """Rows of a block of lines (line numbers from ``first``); a quoted field may not leave its line."""
+    rdr = csv.reader(lines, delimiter=delim, strict=True)
+    out: list[tuple[int, list[str]]] = []
+    prev = 0
+    try:
+        for cells in rdr:
+            if rdr.line_num - prev > 1:
+                raise InputError(f"{src}: line {first + prev}: a quoted field runs past its line (a stray quote?); "
+                                 "no row is read across lines")
+            prev = rdr.line_num
+            if not cells or not "".join(cells).strip():
+                continue
+            if len(cells) > MAX_COLUMNS:
+                raise InputError(f"{src}: line {first + prev - 1} has {len(cells)} cells; at most {MAX_COLUMNS} "
+                                 "columns are read")
+            if max(map(len, cells)) > MAX_CELL:
+                raise InputError(f"{src}: line {first + prev - 1} has a cell longer than {MAX_CELL} characters")
+            out.append((first + prev - 1, cells))
+    except csv.Error as exc:
+        raise InputError(f"{src}: line {first + prev}: {exc} — a quoted field runs past its line (a stray quote?)"
+                         ) from None
+    return out
+
+
+def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma: bool | None,
+            chunk_rows: int) -> Iterator[SampleTable]:
+    first = reader.next()
+    while first is not None and not first.strip():
+        first = reader.next()
+    if first is None:
+        raise InputError(f"{src} is empty")
+    delim = delimiter or _delimiter(first, src)
+    if decimal_comma and delim == ",":
+        raise InputError(f"{src}: decimal commas cannot be read in a comma-separated file; use ';' as delimiter")
+    header = _header(_cells(first, delim, src, reader.number), src)
+    units: dict[str, str] = {}
+    any_rows = False
+    expect_units = True
+    block = min(chunk_rows, CHUNK_ROWS)
+    rows: list[list[str]] = []
+    errors: list[str | None] = []
+    numbers: list[int] = []
+    while True:
+        start = reader.number + 1
+        lines = []
+        for _ in range(block):
+            line = reader.next()
+            if line is None:
+                break
+            lines.append(line)
+        if not lines:
+            break
+        for number, cells in _parse_block(lines, start, delim, src):
+            if expect_units:
+                expect_units = False
+                if _is_units_row(cells, header):
+                    units.update({h: u.strip() for h, u in zip(header[1:], cells[1:], strict=True) if u.strip()})
+                    continue
+            _append(rows, errors, numbers, len(header), cells, number)
+            any_rows = True
+            if len(errors) >= chunk_rows:
+                yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers)
+                rows, errors, numbers = [], [], []
+    if not any_rows:
+        raise InputError(f"{src} has a header but no sample rows")
+    if errors:
+        yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers)
+
+
+def _table(header: list[str], units: dict[str, str], delim: str, decimal_comma: bool | None, src: str,
+           rows: list[list[str]], errors: list[str | None], numbers: list[int]) -> SampleTable:
+    cols = {h: list(col) for h, col in zip(header, zip(*rows, strict=True), strict=True)}
+    return SampleTable(cols, dict(units), errors, numbers, delim, decimal_comma, src)
+
+
+def _append(rows: list[list[str]], errors: list[str | None], numbers: list[int], width: int, cells: list[str],
+            number: int) -> None:
+    if len(cells) != width:
+        errors.append(f"line {number} has {len(cells)} cells for {width} columns (a delimiter or a decimal comma "
+                      "inside a cell?); the row is not re-aligned")
+        cells = (cells + [""] * width)[:width]
+    else:
+        errors.append(None)
+    numbers.append(number)
+    rows.append(cells)
+
+
+def read_samples_csv(path: Any, *, delimiter: str | None = None, decimal_comma: bool | None = None) -> SampleTable:
+    """Read a whole sample file (see :func:`iter_samples_csv` for large files and the rules)."""
+    parts = list(iter_samples_csv(path, delimiter=delimiter, decimal_comma=decimal_comma, chunk_rows=sys.maxsize))
+    return parts[0]
