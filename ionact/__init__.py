@@ -34,7 +34,7 @@ from .conversion import (
     px_from_activity,
     standard_for_activity,
 )
-from .electrode import mv_to_relative_error, nikolsky_eisenman, relative_error_to_mv, temperature_error
+from .electrode import mv_to_relative_error, nernst_slope, nikolsky_eisenman, relative_error_to_mv, temperature_error
 from .errors import (
     InfeasibleDesignError,
     InputError,
@@ -51,7 +51,6 @@ from .estimates import IonicStrengthEstimate, ionic_strength_from_conductivity, 
 from .samples import SampleCheck, check_samples
 from .solution import Solution
 from .species import Ion, Salt, register_ion
-from .water import nernst_slope
 
 __all__ = [
     "__version__",

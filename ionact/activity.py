@@ -15,6 +15,7 @@ import numpy as np
 
 from . import water
 from .constants import LN10
+from .electrode import nernst_slope
 from .errors import InputError, MissingParameterError, ValidityRangeWarning, strict, warn_range
 from .models import pitzer as pz
 from .models.registry import MODELS, Batch, ModelInfo, get_model
@@ -367,7 +368,7 @@ def compare_models(solution: Solution, models=None, **options) -> ModelCompariso
         r = hi / lo
         spread[ion] = float(r - 1) if np.ndim(r) == 0 else r - 1
         if z != 0:
-            mv = np.abs(water.nernst_slope(z, solution.temperature)) * np.log10(r)
+            mv = np.abs(nernst_slope(z, solution.temperature)) * np.log10(r)
             spread_mv[ion] = float(mv) if np.ndim(mv) == 0 else mv
         else:
             spread_mv[ion] = 0.0

@@ -238,8 +238,8 @@ def cmd_check(args: argparse.Namespace) -> int:
     from .samples import check_csv
 
     _check_figure_path(args.plot)
+    dil = _dilutions(args.dilutions)  # options first: a typo is reported before any file is read
     design = _read_design(args.design)
-    dil = _dilutions(args.dilutions)
     cal = tuple(args.calibration) if args.calibration else None
     to_stdout = args.out == "-"
     summary = check_csv(args.samples, design, out=None if to_stdout else args.out, plot=args.plot,

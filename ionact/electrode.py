@@ -8,6 +8,7 @@ an anion. Relative errors are fractions (0.039 = 3.9 %).
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 
@@ -15,7 +16,7 @@ import numpy as np
 
 from .errors import InputError
 from .species import resolve_ion
-from .water import nernst_slope
+from .water import FARADAY, GAS_CONSTANT, ZERO_CELSIUS, _temperature
 
 __all__ = [
     "nernst_slope",
@@ -31,6 +32,40 @@ __all__ = [
 def _out(x):
     x = np.asarray(x)
     return float(x) if x.ndim == 0 else x
+
+
+def nernst_slope(charge: object = 1, temperature: object = 25.0) -> float | np.ndarray:
+    """Nernst slope ln(10) R T / (z F) in mV per decade of activity, signed by the charge.
+
+    Parameters
+    ----------
+    charge : int or array_like
+        Signed charge number of the measured ion (not zero).
+    temperature : float or array_like
+        °C.
+
+    Raises
+    ------
+    InputError
+        A charge of zero.
+
+    Examples
+    --------
+    >>> round(nernst_slope(1, 25.0), 3)
+    59.159
+    >>> round(nernst_slope(-2, 25.0), 3)
+    -29.58
+    """
+    if isinstance(charge, bool | str):
+        raise InputError(f"nernst_slope: charge {charge!r} is not a signed charge number")
+    try:
+        z = np.asarray(charge, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"nernst_slope: charge {charge!r} is not a signed charge number") from None
+    if np.any(z == 0):
+        raise InputError("nernst_slope: charge 0 has no Nernst slope; allowed: non-zero charges")
+    t = _temperature(temperature, "Nernst slope")
+    return _out(math.log(10) * GAS_CONSTANT * (t + ZERO_CELSIUS) / (z * FARADAY) * 1e3)
 
 
 def mv_to_relative_error(mv, charge, temperature=25.0):
@@ -67,7 +102,7 @@ def relative_error_to_mv(relative_error, charge, temperature=25.0):
 class NikolskyResult:
     """Apparent activity under interference and the resulting bias."""
 
-    primary: str
+    analyte: str
     activity: float | np.ndarray
     apparent_activity: float | np.ndarray
     bias_relative: float | np.ndarray
@@ -75,13 +110,13 @@ class NikolskyResult:
     contributions: dict  # interferent -> K a^(z_i/z_j)
 
 
-def nikolsky_eisenman(primary: str, activity, interferents: Mapping[str, tuple], temperature=25.0) -> NikolskyResult:
+def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple], temperature=25.0) -> NikolskyResult:
     """Nikolsky–Eisenman apparent activity a_i + Σ K_ij a_j^(z_i/z_j) and the bias it causes.
 
     Parameters
     ----------
-    primary : str
-        The electrode's primary ion.
+    analyte : str
+        The electrode's primary ion (the analyte).
     activity : float or array_like
         Its activity (> 0).
     interferents : mapping
@@ -94,7 +129,13 @@ def nikolsky_eisenman(primary: str, activity, interferents: Mapping[str, tuple],
     >>> round(r.bias_relative * 100, 1), round(r.bias_mv, 3)
     (50.0, -10.417)
     """
-    ion = resolve_ion(primary)
+    ion = resolve_ion(analyte)
+    if not isinstance(interferents, Mapping):
+        raise InputError(f"interferents {interferents!r} must be a mapping of ion -> (activity, "
+                         "selectivity coefficient)")
+    for name, spec in interferents.items():
+        if isinstance(spec, str | bytes) or not isinstance(spec, tuple | list) or len(spec) != 2:
+            raise InputError(f"interferent {name!r} needs (activity, selectivity coefficient), got {spec!r}")
     if ion.charge == 0:
         raise InputError(f"primary ion {ion.name} is neutral; an ion-selective electrode needs a charged ion")
     a = np.asarray(activity, dtype=float)

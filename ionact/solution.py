@@ -28,6 +28,8 @@ from .units import MOLAL, Amount, parse_amount
 __all__ = ["Solution"]
 
 DEFAULT_CHARGE_TOLERANCE = 1e-6  # relative: |Σ z m| / (½ Σ |z| m)
+# mol/kg: beyond every model's range and any real solubility (saturated LiCl or CaCl2 stay below)
+MAX_SOLUTION_IONIC_STRENGTH = 40.0
 
 
 def _readonly(a: np.ndarray) -> np.ndarray:
@@ -154,10 +156,22 @@ class Solution:
         else:
             self._check_balance(charge_tolerance)
         self._m = _readonly(self._m)
+        self._check_real()
 
     @staticmethod
     def _water_per_litre_mixed(names, ions, molal, molar, t, dens) -> np.ndarray:
         return water_per_litre([ions[n] for n in names], t, molal=molal, molar=molar, density=dens)
+
+    def _check_real(self) -> None:
+        """An ionic strength beyond any real solution is an input error (bare numbers are mol/kg)."""
+        if not self._names:
+            return
+        ionic = 0.5 * np.tensordot(self._z**2, self._m, axes=(0, 0))
+        if np.any(ionic > MAX_SOLUTION_IONIC_STRENGTH):
+            bad = float(np.max(ionic))
+            raise InputError(f"ionic strength {bad:.4g} mol/kg is beyond any real solution (above "
+                             f"{MAX_SOLUTION_IONIC_STRENGTH:g}); bare numbers are mol/kg — for mg/L write e.g. "
+                             "'150 mg/L'")
 
     def _imbalance(self) -> tuple[np.ndarray, np.ndarray]:
         cb = np.tensordot(self._z, self._m, axes=(0, 0)) if self._names else np.zeros(self.shape)
@@ -248,8 +262,10 @@ class Solution:
         dens = check_density(density)
         if dens is not None and not isinstance(dens, str):
             dens = _readonly(np.broadcast_to(dens, shape))
-        return cls._from_arrays(names, {o.name: o for o in objs}, np.broadcast_to(m, (len(objs), *shape)),
-                                np.broadcast_to(t, shape), dens)
+        obj = cls._from_arrays(names, {o.name: o for o in objs}, np.broadcast_to(m, (len(objs), *shape)),
+                               np.broadcast_to(t, shape), dens)
+        obj._check_real()
+        return obj
 
     @classmethod
     def from_parts(cls, parts, temperature=25.0, *, balance: str | None = None,
@@ -340,7 +356,9 @@ class Solution:
         return self._names
 
     def ion(self, name: str) -> Ion:
-        """The :class:`Ion` record of a species in this solution."""
+        """The :class:`Ion` record of a species in this solution (its exact name, or any notation of it)."""
+        if isinstance(name, str) and name in self._ions:
+            return self._ions[name]
         key = Ion.parse(name).name
         if key not in self._ions:
             raise InputError(f"{key} is not in this solution (has {', '.join(self._names) or 'nothing'})")
@@ -382,7 +400,7 @@ class Solution:
 
     def molality(self, name: str):
         """Molality of one species (0 if absent), mol/kg."""
-        key = Ion.parse(name).name
+        key = name if isinstance(name, str) and name in self._ions else Ion.parse(name).name
         if key not in self._names:
             return _out(np.zeros(self.shape))
         return _out(self._m[self._names.index(key)])

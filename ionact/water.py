@@ -21,7 +21,6 @@ __all__ = [
     "debye_huckel_a",
     "debye_huckel_b",
     "pitzer_aphi",
-    "nernst_slope",
     "ELEMENTARY_CHARGE",
     "BOLTZMANN",
     "AVOGADRO",
@@ -218,32 +217,3 @@ def pitzer_aphi(temperature=25.0):
     0.392
     """
     return _out(_dh_a(_temperature(temperature, "Pitzer A_phi")) * math.log(10) / 3)
-
-
-def nernst_slope(charge=1, temperature=25.0):
-    """Nernst slope ln(10) R T / (z F) in mV per decade of activity, signed by the charge.
-
-    Parameters
-    ----------
-    charge : int or array_like
-        Signed charge number of the measured ion (not zero).
-    temperature : float or array_like
-        °C.
-
-    Raises
-    ------
-    InputError
-        A charge of zero.
-
-    Examples
-    --------
-    >>> round(nernst_slope(1, 25.0), 3)
-    59.159
-    >>> round(nernst_slope(-2, 25.0), 3)
-    -29.58
-    """
-    z = np.asarray(charge, dtype=float)
-    if np.any(z == 0):
-        raise InputError("nernst_slope: charge 0 has no Nernst slope; allowed: non-zero charges")
-    t = _temperature(temperature, "Nernst slope")
-    return _out(math.log(10) * GAS_CONSTANT * (t + ZERO_CELSIUS) / (z * FARADAY) * 1e3)

@@ -332,3 +332,88 @@ def test_warnings_point_at_the_callers_code():
         ia.concentration_from_activity("Na+", 0.5, model="davies")
         parse_amount("35 ppm", "Cl-")
     assert rec and all(r.filename == __file__ for r in rec), [(r.filename, str(r.message)) for r in rec]
+
+
+# -- inputs that used to end in a traceback, a hang or a silently changed value ------------------
+def _d():
+    return ia.design_adjuster("F-", {"NaCl": 1.0}, samples=ia.SamplePopulation(ionic_strength=(0, 0.01)),
+                              analyte_range=(1e-5, 1e-3), budget=ia.Budget(mv=1.0), solve="none", model="davies")
+
+
+MORE_CASES = [
+    ("davies-text", lambda: ia.models.davies(1, "abc"), InputError, "'abc'"),
+    ("davies-shapes", lambda: ia.models.davies([1, 2, 3], [0.1, 0.2]), InputError, "do not broadcast"),
+    ("design-unknown-keyword", lambda: _design(flavour=1), InputError, "flavour"),
+    ("interferent-not-a-pair", lambda: ia.nikolsky_eisenman("NO3-", 1e-4, {"Cl-": 5}), InputError, "Cl-"),
+    ("interferents-a-list", lambda: ia.nikolsky_eisenman("NO3-", 1e-4, [("Cl-", 1)]), InputError, "mapping"),
+    ("convert-text", lambda: ia.units.convert_amount("abc", "molar", "mg/L", "Cl-"), InputError, "'abc'"),
+    ("nacl-150-molal", lambda: ia.Solution.from_salts({"NaCl": 150}), InputError, "beyond any real solution"),
+    ("solution-density-word", lambda: ia.Solution({"Na+": 0.1, "Cl-": 0.1}, density="Water"), InputError, "Water"),
+    ("ion-mass-text", lambda: ia.Ion(formula="X", charge=1, molar_mass="10"), InputError, "'10'"),
+    ("electrode-selectivity-list", lambda: ia.Electrode(selectivity=[("Cl-", 1)]), InputError, "mapping"),
+    ("samples-range-huge", lambda: ia.SamplePopulation(ionic_strength=(0, 1e6)), InputError, "20"),
+    ("check-scalar-column", lambda: ia.check_samples({"analyte": 1e-4, "ionic_strength": 0.01}, _d()), InputError,
+     "'analyte'"),
+    ("check-empty", lambda: ia.check_samples({"analyte": [], "ionic_strength": []}, _d()), InputError, "empty"),
+    ("check-dilutions-text", lambda: ia.check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, _d(),
+                                                      dilutions="1,2"), InputError, "'1,2'"),
+    ("amount-decimal-comma", lambda: parse_amount("0,1 mol/kg"), InputError, "'0.1 mol/kg'"),
+    ("amount-power", lambda: parse_amount("9**9**9"), InputError, "9**9**9"),
+    ("amount-bool", lambda: parse_amount(True), InputError, "boolean"),
+    ("amount-percent", lambda: parse_amount("1 %", "Na+"), UnitError, "%"),
+    ("amount-megamolar", lambda: parse_amount("1 MM", "Na+"), UnitError, "MM"),
+]
+
+
+@pytest.mark.parametrize("fn,err,fragment", [c[1:] for c in MORE_CASES], ids=[c[0] for c in MORE_CASES])
+def test_more_bad_inputs(fn, err, fragment):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ia.ValidityRangeWarning)
+        with pytest.raises(err) as info:
+            fn()
+    assert isinstance(info.value, err) and fragment in str(info.value)
+
+
+def test_ion_names_ending_in_a_digit_and_a_sign_work_through_the_models():
+    mesylate = ia.Ion(formula="CH3SO3", charge=-1, molar_mass=95.1)
+    g = ia.activity_coefficients(ia.Solution({mesylate: 0.01, "Na+": 0.01}), "davies")
+    assert g["CH3SO3-"] == pytest.approx(ia.models.davies(-1, 0.01))
+    n3 = ia.Ion.parse("N^3-")
+    assert ia.Ion.parse(n3.name) == n3 and n3.charge == -3
+
+
+def test_nan_in_a_size_array_is_nan_in_that_position():
+    out = ia.models.extended_debye_huckel(1, 0.01, [4.0, float("nan")])
+    assert np.isfinite(out[0]) and np.isnan(out[1])
+
+
+@pytest.mark.parametrize("argv,fragment", [
+    (["check", "x.csv", "--design", "d.json", "--dilutions", "1,2,x"], "x"),
+    (["check", "x.csv", "--design", "d.json", "--dilutions", ","], "--dilutions"),
+    (["check", "x.csv", "--design", "d.json", "--plot", "p.xyz"], "p.xyz"),
+    (["design", "/dev/zero"], "/dev/zero"),
+    (["strength", "NaCl=1,5"], "decimal comma"),
+    (["strength", "NaCl=2 3"], "'2 3'"),
+    (["strength", "NaCl=0.1=2"], "0.1=2"),
+    (["strength", "--conductivity", "0,85 mS/cm"], "decimal comma"),
+])
+def test_cli_inputs_end_in_one_line(capsys, argv, fragment):
+    rc = main(argv)
+    _, err = capsys.readouterr()
+    assert rc == 2 and err.count("\n") == 1 and fragment in err
+
+
+def test_cli_errors_are_json_with_json(capsys):
+    rc = main(["strength", "NaCl=1,5", "--json"])
+    _, err = capsys.readouterr()
+    data = json.loads(err)
+    assert rc == 2 and data["format"] == "ionact-error" and "decimal comma" in data["message"]
+
+
+def test_closed_pipe_ends_quietly():
+    import subprocess
+    import sys
+
+    p = subprocess.run(f"{sys.executable} -m ionact demo | head -1", shell=True, capture_output=True, text=True,
+                       timeout=120)
+    assert p.stdout.count("\n") == 1 and "Traceback" not in p.stderr and "BrokenPipe" not in p.stderr

@@ -79,8 +79,8 @@ def test_batch_equals_rows():
         assert b.density[i] == pytest.approx(r.density)
 
 
-@given(st.floats(1e-6, 2.0), st.floats(0.1, 10.0))
-def test_ionic_strength_scales_linearly(m, k):
+@given(st.floats(1e-6, 1.0), st.floats(0.1, 10.0))
+def test_ionic_strength_scales_linearly(m, k):  # up to I = 35 mol/kg; beyond 40 is refused as unreal
     a = ia.Solution.from_salts({"CaCl2": m, "NaNO3": m / 2})
     b = ia.Solution.from_salts({"CaCl2": m * k, "NaNO3": m * k / 2})
     assert b.ionic_strength == pytest.approx(a.ionic_strength * k, rel=1e-12)

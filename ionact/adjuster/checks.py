@@ -22,13 +22,13 @@ import numpy as np
 
 from ..constants import PARAMETER_WINDOW
 from ..density import water_per_litre
+from ..electrode import nernst_slope
 from ..errors import InputError, MissingParameterError
 from ..models.registry import Batch
 from ..models.resolver import ModelChoice, evaluate, resolve_model
 from ..references import cite
 from ..species import Ion, Salt, resolve_ion
 from ..tables import acid_table, ksp_table
-from ..water import nernst_slope
 from .inputs import Electrode, SamplePopulation
 from .solve import BufferPlan, stock_saturation
 from .system import Evaluated, System

@@ -14,8 +14,8 @@ from typing import Any
 
 import numpy as np
 
-from .. import water
 from .._frozen import frozen_map
+from ..electrode import nernst_slope
 from ..errors import InputError
 from ..solution import Solution
 from ..species import Ion, Salt, resolve_ion
@@ -105,7 +105,7 @@ class Budget:
         if self.mv is not None:
             return self.mv
         assert self.percent is not None
-        return abs(float(water.nernst_slope(charge, temperature))) * math.log10(1.0 + self.percent / 100.0)
+        return abs(float(nernst_slope(charge, temperature))) * math.log10(1.0 + self.percent / 100.0)
 
     def to_dict(self) -> dict[str, float | None]:
         return {"mv": self.mv, "percent": self.percent}

@@ -251,7 +251,7 @@ def counter_ion(analyte: Ion, standard_salt: str | None) -> Ion:
 
 def log_slope(charge: int, temperature: float) -> float:
     """|S/z| in mV per decade."""
-    from ..water import nernst_slope
+    from ..electrode import nernst_slope
 
     return abs(float(nernst_slope(charge, temperature)))
 

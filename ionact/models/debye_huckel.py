@@ -71,14 +71,35 @@ def _lg_bates_guggenheim(z2, sqrt_i, a):
     return -a * z2 * sqrt_i / (1.0 + BATES_GUGGENHEIM_BA * sqrt_i)
 
 
+def _array(x, what: str, model: str) -> np.ndarray:
+    """A float array of a numeric argument; InputError naming it otherwise (NaN passes through)."""
+    if isinstance(x, str) or (isinstance(x, np.ndarray) and x.dtype.kind in "USO"):
+        raise InputError(f"{model}: {what} {x!r} is not a number")
+    if isinstance(x, bool | np.bool_) or (isinstance(x, np.ndarray) and x.dtype == bool):
+        raise InputError(f"{model}: {what} {x!r} is a boolean, not a number")
+    if isinstance(x, np.ma.MaskedArray):
+        raise InputError(f"{model}: {what} is a masked array; fill or drop the masked entries first")
+    if hasattr(x, "magnitude") and hasattr(x, "units"):
+        raise InputError(f"{model}: {what} must be a plain number or array in the documented unit, not a Quantity")
+    try:
+        return np.asarray(x, dtype=float)
+    except (TypeError, ValueError, OverflowError):
+        raise InputError(f"{model}: {what} {x!r} is not a number or an array of numbers") from None
+
+
 def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True):
-    z = np.asarray(charge, dtype=float)
-    i = np.asarray(ionic_strength, dtype=float)
+    z = _array(charge, "charge", model)
+    i = _array(ionic_strength, "ionic strength", model)
     lo, hi = (float(np.nanmin(i)), float(np.nanmax(i))) if i.size and not np.all(np.isnan(i)) else (0.0, 0.0)
     if lo < 0:
         raise InputError(f"{model}: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative; allowed: ≥ 0")
-    t = np.asarray(temperature, dtype=float)
-    a = water._dh_a(water._temperature(t, model))
+    t = water._temperature(temperature, model)
+    try:
+        np.broadcast_shapes(z.shape, i.shape, t.shape)
+    except ValueError:
+        raise InputError(f"{model}: charge {z.shape}, ionic strength {i.shape} and temperature {t.shape} have shapes "
+                         "that do not broadcast") from None
+    a = water._dh_a(t)
     if warn and model in RANGES and hi > RANGES[model] and np.isfinite(hi):
         warn_range(
             f"model {model}: ionic strength {hi:.4g} mol/kg is above its range "
@@ -96,9 +117,10 @@ def _gamma(lg):
 
 
 def _size(size, model):
-    s = np.asarray(size, dtype=float)
-    if np.any(~(s > 0)):
-        raise InputError(f"{model}: ion size {size!r} Å must be positive")
+    """Ion sizes (Å): NaN passes through as NaN in that position; zero or negative is an error."""
+    s = _array(size, "ion size", model)
+    if np.any(s <= 0):
+        raise InputError(f"{model}: ion size {s[s <= 0].flat[0]:g} Å must be positive")
     return s
 
 

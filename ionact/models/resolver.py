@@ -32,6 +32,9 @@ ASSOCIATION_CHARGE_PRODUCT = 3
 ASSOCIATION_IONIC_STRENGTH = 0.01
 
 
+MODEL_OPTIONS = frozenset({"sizes", "davies_coefficient", "bdot", "setschenow", "setschenow_default", "unsymmetrical"})
+
+
 def parse_missing(missing: object) -> tuple[str, str | None]:
     """The one meaning of ``missing=``: "error", "zero", or a fallback model name.
 
@@ -107,6 +110,10 @@ def choice_for(model: str = "auto", *, missing: str = "error", **options: Any) -
     policy, fallback = parse_missing(missing)
     if model != "auto":
         model = get_model(model).name
+    unknown = sorted(set(options) - MODEL_OPTIONS)
+    if unknown:
+        raise InputError(f"unknown option(s) {', '.join(unknown)}; model options are "
+                         f"{', '.join(sorted(MODEL_OPTIONS))}")
     return model, make_options(missing=policy, **options), fallback
 
 

@@ -25,6 +25,7 @@ import numpy as np
 from .. import water
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
+from ..electrode import nernst_slope
 from ..errors import InputError
 from ..models.registry import Batch
 from ..models.resolver import ModelChoice, log10_gamma, resolve_model
@@ -226,7 +227,7 @@ def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray, rho_w
          + r * core.isa[:, None, None]) / (1 + r)
     lg, ionic = _lg(core.choice, core.ions, c.reshape(nI, -1), method)
     lga = lg[core.k].reshape(n, D)
-    slope = abs(float(water.nernst_slope(method.analyte.charge, method.temperature)))
+    slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     err = slope * np.maximum(np.abs(lga - core.lg_std.min()), np.abs(lga - core.lg_std.max()))
     return err, an[:, None] / dil[None, :] / (1 + r), ionic.reshape(n, D)
 
@@ -399,7 +400,7 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
         chosen[i] = d
     rows = np.arange(len(vals.ids))
     idx = np.where(first >= 0, first, 0)
-    slope = abs(float(water.nernst_slope(method.analyte.charge, method.temperature)))
+    slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     e = np.where(valid, err[rows, idx], np.nan)
     return SampleCheck(
         sample_id=tuple(vals.ids), status=tuple(status), reason=tuple(reason), dilution=chosen, ionic_strength=i_val,
