@@ -241,3 +241,25 @@ def test_design_file_round_trip_then_check(design, tmp_path):
     r0 = check_samples({"analyte": [1e-4], "ionic_strength": [0.01]}, design)
     assert r.error_mv[0] == r0.error_mv[0] and not math.isnan(r.error_mv[0])
     assert os.path.exists(tmp_path)
+
+
+json_values = st.recursive(st.one_of(st.none(), st.booleans(), st.integers(-10**30, 10**30),
+                                     st.floats(allow_nan=True, allow_infinity=True), st.text(max_size=8)),
+                           lambda inner: st.lists(inner, max_size=3) | st.dictionaries(st.text(max_size=5), inner,
+                                                                                       max_size=3), max_leaves=8)
+
+
+@settings(max_examples=60, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(st.sampled_from(["analyte", "counter_ion", "recipe", "volume_ratio", "temperature_c", "budget", "budget_mv",
+                        "worst_error_mv", "final_ionic_strength", "envelope", "analyte_range_mol_per_l",
+                        "standards_mol_per_l", "linear_range_mol_per_l", "selectivity", "model", "checks",
+                        "stock_ions_mol_per_l", "species", "background", "density", "buffer"]), json_values)
+def test_any_damaged_design_field_loads_or_is_named(design, key, value):
+    d = json.loads(json.dumps(design.to_dict()))
+    d[key] = value
+    try:
+        back = ia.AdjusterDesign.from_dict(d)
+    except InputError as exc:
+        assert str(exc)  # a named error, never another exception
+    else:
+        assert isinstance(back, ia.AdjusterDesign)
