@@ -10,10 +10,12 @@ from __future__ import annotations
 import warnings
 from collections.abc import Iterator, Mapping
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
 from . import water
+from ._frozen import Record
 from .constants import LN10
 from .electrode import nernst_slope
 from .errors import InputError, MissingParameterError, ValidityRangeWarning, strict, warn_range
@@ -75,7 +77,7 @@ class ActivityCoefficients(Mapping):
         self.notes = tuple(notes)
         self.ionic_strength = ionic_strength
         self.violations = tuple(str(v) for v in violations)
-        self.in_range = not any(v.kind == "ionic-strength" for v in violations)
+        self.in_range = not any(getattr(v, "kind", "ionic-strength") == "ionic-strength" for v in violations)
 
     def __getitem__(self, key):
         if key in self._g:
@@ -108,6 +110,21 @@ class ActivityCoefficients(Mapping):
                 "choice": self.choice.to_dict(), "notes": list(self.notes),
                 "ionic_strength": conv(self.ionic_strength), "in_range": self.in_range,
                 "violations": list(self.violations), "gamma": {k: conv(v) for k, v in self._g.items()}}
+
+    @classmethod
+    def from_dict(cls, d: Mapping[str, Any]) -> ActivityCoefficients:
+        """Read back :meth:`to_dict` output."""
+        if not isinstance(d, Mapping) or "gamma" not in d or "choice" not in d:
+            raise InputError("activity coefficients must be read from the mapping to_dict() gives")
+
+        def arr(v: Any) -> float | np.ndarray:
+            return float(v) if not isinstance(v, list) else np.asarray(v, dtype=float)
+
+        obj = cls({k: arr(v) for k, v in d["gamma"].items()}, ModelChoice.from_dict(d["choice"]), d.get("notes", ()),
+                  arr(d["ionic_strength"]), ())
+        obj.violations = tuple(d.get("violations", ()))
+        obj.in_range = bool(d.get("in_range", True))
+        return obj
 
 
 def activity_coefficients(
@@ -192,7 +209,7 @@ def activity_coefficients(
 
 
 @dataclass(frozen=True)
-class MeanActivityCoefficient:
+class MeanActivityCoefficient(Record):
     """γ± of a salt from single-ion values, with the convention that applies.
 
     ``float(result)`` gives the value for a single solution; ``np.asarray(result)`` for a batch.
@@ -293,7 +310,7 @@ def water_activity(solution: Solution, model: str = "pitzer", missing: str = "er
 
 
 @dataclass(frozen=True)
-class ModelComparison:
+class ModelComparison(Record):
     """Every applicable model's γ side by side, and how far they spread.
 
     Attributes

@@ -144,7 +144,7 @@ def cmd_convert(args: argparse.Namespace) -> int:
             _quantity(args.px, "", "--px"))
         r = concentration_from_activity(args.ion, a, **kw)
     data = r.to_dict()
-    lines = [f"{r.ion} with counter-ion {r.counter_ion} in "
+    lines = [f"{r.analyte} with counter-ion {r.counter_ion} in "
              f"{'pure water' if matrix is None else 'the given matrix'}, model {r.model}"]
     lines.append(f"  activity        {r.activity:.6g}   (pX = {-np.log10(r.activity):.4f})")
     lines.append(f"  γ               {r.gamma:.6f}")

@@ -22,6 +22,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._frozen import Record
 from .constants import LN10
 from .errors import InputError, ValidityRangeWarning, warn_range
 from .models.registry import Batch
@@ -83,7 +84,7 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
         ions = [matrix.ion(n) for n in names]
         shape = np.broadcast_shapes(matrix.shape, shape_in)
         base_m = np.broadcast_to(matrix.molality_array, (len(names), *shape))
-        t = np.broadcast_to(matrix._t, shape)
+        t = np.broadcast_to(np.asarray(matrix.temperature, dtype=float), shape)
     else:
         names, ions, shape = [], [], tuple(shape_in)
         t_arr = np.asarray(25.0 if temperature is None else temperature, dtype=float)
@@ -175,12 +176,12 @@ def _max_reachable(p: _Problem, choice: ModelChoice, row: int) -> float:
 
 
 @dataclass(frozen=True)
-class ActivityConversion:
+class ActivityConversion(Record):
     """The analyte's molality, activity and γ in its matrix, and how they were obtained.
 
     Attributes
     ----------
-    ion, counter_ion : str
+    analyte, counter_ion : str
         The analyte and the counter-ion assumed to accompany it (None for a neutral).
     molality : float or ndarray
         Analyte molality, mol/kg.
@@ -194,7 +195,7 @@ class ActivityConversion:
         The final solution, for further conversions (molar units need its density model).
     """
 
-    ion: str
+    analyte: str
     counter_ion: str | None
     molality: float | np.ndarray
     activity: float | np.ndarray
@@ -210,15 +211,7 @@ class ActivityConversion:
         """The analyte concentration in ``unit`` (mol/kg, mmol/kg, mol/L, mmol/L, mg/L, µg/L,
         meq/L, "mg/L as N", …); molar units use the final solution's density model."""
         w = None if unit in ("mol/kg", "mmol/kg") else self.solution.water_per_litre
-        return convert_amount(self.molality, MOLAL, unit, self.ion, water_per_litre=w)
-
-    def to_dict(self) -> dict:
-        def conv(v):
-            return float(v) if np.ndim(v) == 0 else np.asarray(v).tolist()
-
-        return {"ion": self.ion, "counter_ion": self.counter_ion, "molality": conv(self.molality),
-                "activity": conv(self.activity), "gamma": conv(self.gamma),
-                "ionic_strength": conv(self.ionic_strength), "model": self.model, "reason": self.reason}
+        return convert_amount(self.molality, MOLAL, unit, self.solution.ion(self.analyte), water_per_litre=w)
 
 
 def _out(x, shape):
@@ -239,14 +232,14 @@ def _final(ion, counter, p, m_an, choice: ModelChoice, density=None) -> Activity
                               choice.name, choice.reason, sol, choice, tuple(ev.notes))
 
 
-def concentration_from_activity(ion, activity, matrix: Solution | None = None, counter_ion=None,
+def concentration_from_activity(analyte, activity, *, matrix: Solution | None = None, counter_ion=None,
                                 model: str = "auto", temperature=None, missing: str = "error",
                                 **model_options) -> ActivityConversion:
     """The analyte concentration that gives a measured activity in a matrix.
 
     Parameters
     ----------
-    ion : str or Ion
+    analyte : str or Ion
         The analyte, e.g. "F-", "NO3-", "Ca^2+".
     activity : float or array_like
         Molal-scale activity (> 0); arrays give a batch (broadcast against a batch matrix).
@@ -282,7 +275,7 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
     >>> round(r.molality, 5), r.counter_ion
     (0.01, 'Cl-')
     """
-    an = resolve_ion(ion)
+    an = resolve_ion(analyte)
     counter = _counter(an, counter_ion)
     a = np.asarray(activity, dtype=float) if not isinstance(activity, str) else None
     if a is None:
@@ -290,7 +283,7 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
     if not np.all(np.isfinite(a)) or np.any(a <= 0):
         bad = a[~(np.isfinite(a) & (a > 0))].flat[0]
         raise InputError(f"activity {float(bad):g} of {an.name} is not positive and finite; allowed: > 0")
-    if matrix is not None and temperature is not None and np.any(np.asarray(temperature) != matrix._t):
+    if matrix is not None and temperature is not None and np.any(np.asarray(temperature) != np.asarray(matrix.temperature)):
         raise InputError(f"temperature {temperature!r} differs from the matrix's {matrix.temperature!r}; "
                          "set the temperature on the matrix")
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
@@ -314,7 +307,7 @@ def concentration_from_activity(ion, activity, matrix: Solution | None = None, c
     return _final(an, counter, p, np.exp(x), choice)
 
 
-def activity_from_concentration(ion, amount, matrix: Solution | None = None, counter_ion=None,
+def activity_from_concentration(analyte, amount, *, matrix: Solution | None = None, counter_ion=None,
                                 model: str = "auto", temperature=None, density=None, missing: str = "error",
                                 **model_options) -> ActivityConversion:
     """The activity an electrode will see for a given analyte concentration in a matrix.
@@ -334,7 +327,7 @@ def activity_from_concentration(ion, amount, matrix: Solution | None = None, cou
     >>> round(r.activity, 6), round(r.gamma, 5)
     (0.008104, 0.81039)
     """
-    an = resolve_ion(ion)
+    an = resolve_ion(analyte)
     counter = _counter(an, counter_ion)
     amt = amount if isinstance(amount, Amount) else parse_amount(amount, an)
     value = np.asarray(amt.value, dtype=float)
@@ -349,7 +342,7 @@ def activity_from_concentration(ion, amount, matrix: Solution | None = None, cou
         plist = list(parts.items()) + [(an, Amount(value, "molar"))]
         if counter is not None:
             plist.append((counter, Amount(value * abs(an.charge) / abs(counter.charge), "molar")))
-        t = matrix._t if matrix is not None else (25.0 if temperature is None else temperature)
+        t = matrix.temperature if matrix is not None else (25.0 if temperature is None else temperature)
         sol = Solution.from_parts(plist, t, charge_tolerance=0.999, density=density)
         value = np.asarray(sol.molality(an.name))
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
@@ -389,7 +382,7 @@ def px_from_activity(activity):
 
 
 @dataclass(frozen=True)
-class StandardRecipe:
+class StandardRecipe(Record):
     """How much salt makes a standard of a given analyte activity."""
 
     salt: str
@@ -402,7 +395,7 @@ class StandardRecipe:
     model: str
 
 
-def standard_for_activity(salt: str, ion: str, activity, matrix: Solution | None = None, model: str = "auto",
+def standard_for_activity(salt: str, analyte: str, activity, *, matrix: Solution | None = None, model: str = "auto",
                           temperature=None, **model_options) -> StandardRecipe:
     """The salt amount that gives a standard of the wanted activity of one of its ions.
 
@@ -413,7 +406,7 @@ def standard_for_activity(salt: str, ion: str, activity, matrix: Solution | None
     (1.037, 0.0435)
     """
     s = Salt.parse(salt)
-    an = resolve_ion(ion)
+    an = resolve_ion(analyte)
     names = [n for n, _ in s.ions]
     if an.name not in names or len(names) != 2:
         raise InputError(f"{an.name} is not one of the two ions of {s.text} ({', '.join(names)})")

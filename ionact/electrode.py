@@ -14,9 +14,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._frozen import Record, frozen_map
 from .errors import InputError
 from .species import resolve_ion
-from .water import FARADAY, GAS_CONSTANT, ZERO_CELSIUS, _temperature
+from .water import FARADAY, GAS_CONSTANT, ZERO_CELSIUS, checked_temperature
 
 __all__ = [
     "nernst_slope",
@@ -64,7 +65,7 @@ def nernst_slope(charge: object = 1, temperature: object = 25.0) -> float | np.n
         raise InputError(f"nernst_slope: charge {charge!r} is not a signed charge number") from None
     if np.any(z == 0):
         raise InputError("nernst_slope: charge 0 has no Nernst slope; allowed: non-zero charges")
-    t = _temperature(temperature, "Nernst slope")
+    t = checked_temperature(temperature, "Nernst slope")
     return _out(math.log(10) * GAS_CONSTANT * (t + ZERO_CELSIUS) / (z * FARADAY) * 1e3)
 
 
@@ -99,7 +100,7 @@ def relative_error_to_mv(relative_error, charge, temperature=25.0):
 
 
 @dataclass(frozen=True)
-class NikolskyResult:
+class NikolskyResult(Record):
     """Apparent activity under interference and the resulting bias."""
 
     analyte: str
@@ -107,10 +108,13 @@ class NikolskyResult:
     apparent_activity: float | np.ndarray
     bias_relative: float | np.ndarray
     bias_mv: float | np.ndarray
-    contributions: dict  # interferent -> K a^(z_i/z_j)
+    contributions: Mapping[str, float | np.ndarray]  # interferent -> K a^(z_i/z_j)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "contributions", frozen_map(self.contributions))
 
 
-def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple], temperature=25.0) -> NikolskyResult:
+def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple], *, temperature=25.0) -> NikolskyResult:
     """Nikolsky–Eisenman apparent activity a_i + Σ K_ij a_j^(z_i/z_j) and the bias it causes.
 
     Parameters
@@ -167,7 +171,7 @@ def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple],
 
 
 @dataclass(frozen=True)
-class TemperatureError:
+class TemperatureError(Record):
     """Error from measuring at T2 with a calibration made at T1.
 
     Attributes
@@ -192,7 +196,7 @@ class TemperatureError:
     error_mv: float | np.ndarray
 
 
-def temperature_error(activity, charge, calibration_temperature, measurement_temperature, ionic_strength=0.0,
+def temperature_error(activity, charge, *, calibration_temperature, measurement_temperature, ionic_strength=0.0,
                       isopotential_activity=1.0, model: str = "davies") -> TemperatureError:
     """The error when a sample is measured at a temperature other than the calibration's.
 
@@ -206,7 +210,7 @@ def temperature_error(activity, charge, calibration_temperature, measurement_tem
 
     Examples
     --------
-    >>> e = temperature_error(1e-4, -1, 25.0, 30.0, ionic_strength=0.1)
+    >>> e = temperature_error(1e-4, -1, calibration_temperature=25.0, measurement_temperature=30.0, ionic_strength=0.1)
     >>> round(e.slope_ratio, 5), round(e.error_percent, 2)
     (1.01677, -14.49)
     """

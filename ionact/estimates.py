@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ._frozen import Record
 from .errors import InputError, warn_range
 from .references import cite
 from .units import parse_scalar
@@ -33,8 +34,8 @@ EC_FRESH_LIMIT = 5000.0  # µS/cm; beyond it the rules of thumb are not for "fre
 TDS_FRESH_LIMIT = 3000.0  # mg/L (common practice)
 
 
-@dataclass(frozen=True, slots=True)
-class IonicStrengthEstimate:
+@dataclass(frozen=True)
+class IonicStrengthEstimate(Record):
     """An ionic strength estimated by a rule of thumb, with the rule named.
 
     Attributes

@@ -470,6 +470,33 @@ class Solution:
         for i in range(len(self)):
             yield self[i]
 
+    def to_dict(self) -> dict:
+        """Plain data: the species (as Ion records), molalities (mol/kg), temperature (°C) and density choice."""
+        from ._frozen import plain
+
+        dens = self._density
+        return plain({"species": [self._ions[n].to_dict() for n in self._names],
+                      "molalities": np.asarray(self._m).tolist(), "temperature": np.asarray(self._t).tolist(),
+                      "density": dens if dens is None or isinstance(dens, str) else np.asarray(dens).tolist()})
+
+    @classmethod
+    def from_dict(cls, d: Mapping) -> Solution:
+        """A solution from :meth:`to_dict` output.
+
+        Raises
+        ------
+        InputError
+            A missing or malformed field.
+        """
+        if not isinstance(d, Mapping) or not {"species", "molalities", "temperature"} <= set(d):
+            raise InputError("a solution must be read from a mapping with species, molalities and temperature")
+        species = d["species"]
+        if not isinstance(species, list):
+            raise InputError("solution species must be a list of ion records")
+        ions = [Ion.from_dict(x) for x in species]
+        m = np.asarray(d["molalities"], dtype=float) if ions else np.zeros((0, *np.shape(d["temperature"])))
+        return cls.from_arrays(ions, m, d["temperature"], density=d.get("density"))
+
     def __repr__(self) -> str:
         if self.shape:
             return f"Solution(batch of shape {self.shape}, ions={list(self._names)})"
@@ -574,7 +601,7 @@ class Solution:
 
 def _solution_temperature(temperature: object) -> np.ndarray:
     """°C (numbers, arrays, "25 degC", a pint Quantity), finite and within liquid water's range."""
-    t = water._temperature(temperature, "solution temperature")
+    t = water.checked_temperature(temperature, "solution temperature")
     if not np.all(np.isfinite(t)):
         raise InputError(f"temperature {temperature!r} is NaN or infinite; allowed: 0–100 °C")
     return t

@@ -16,6 +16,10 @@ import numpy as np
 from .errors import InputError, warn_range
 
 __all__ = [
+    "checked_temperature",
+    "bjerrum_kappa",
+    "dh_a_array",
+    "dh_b_array",
     "density",
     "permittivity",
     "debye_huckel_a",
@@ -47,7 +51,7 @@ T_MARGIN_LOW, T_MARGIN_HIGH = -5.0, 105.0
 KELVIN_HINT = 200.0  # °C: a value above this is most likely a temperature in kelvin
 
 
-def _temperature(t: object, what: str) -> np.ndarray:
+def checked_temperature(t: object, what: str) -> np.ndarray:
     """Temperatures (°C, or unit strings / Quantities) checked against liquid water's range.
 
     NaN passes through (NaN in that position of the result); a value outside
@@ -118,7 +122,7 @@ def density(temperature=25.0):
     >>> round(density(25.0), 2)
     997.04
     """
-    return _out(_density(_temperature(temperature, "water density")))
+    return _out(_density(checked_temperature(temperature, "water density")))
 
 
 def permittivity(temperature=25.0):
@@ -139,10 +143,10 @@ def permittivity(temperature=25.0):
     >>> round(permittivity(25.0), 2)
     78.3
     """
-    return _out(_permittivity(_temperature(temperature, "water permittivity")))
+    return _out(_permittivity(checked_temperature(temperature, "water permittivity")))
 
 
-def _bjerrum_kappa(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+def bjerrum_kappa(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Bjerrum length (m) and κ/√I (1/m per (mol/kg)^½)."""
     eps = _permittivity(t)
     rho = _density(t)
@@ -153,12 +157,12 @@ def _bjerrum_kappa(t: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _dh_a(t: np.ndarray) -> np.ndarray:
-    lb, kappa = _bjerrum_kappa(t)
+    lb, kappa = bjerrum_kappa(t)
     return lb * kappa / (2 * math.log(10))
 
 
 def _dh_b(t: np.ndarray) -> np.ndarray:
-    return _bjerrum_kappa(t)[1] * 1e-10
+    return bjerrum_kappa(t)[1] * 1e-10
 
 
 def _once_per_temperature(fn, t: np.ndarray) -> np.ndarray:
@@ -194,7 +198,7 @@ def debye_huckel_a(temperature=25.0):
     >>> round(debye_huckel_a(25.0), 3)
     0.511
     """
-    return _out(_dh_a(_temperature(temperature, "Debye–Hückel A")))
+    return _out(_dh_a(checked_temperature(temperature, "Debye–Hückel A")))
 
 
 def debye_huckel_b(temperature=25.0):
@@ -205,7 +209,7 @@ def debye_huckel_b(temperature=25.0):
     >>> round(debye_huckel_b(25.0), 3)
     0.329
     """
-    return _out(_dh_b(_temperature(temperature, "Debye–Hückel B")))
+    return _out(_dh_b(checked_temperature(temperature, "Debye–Hückel B")))
 
 
 def pitzer_aphi(temperature=25.0):
@@ -216,4 +220,4 @@ def pitzer_aphi(temperature=25.0):
     >>> round(pitzer_aphi(25.0), 3)
     0.392
     """
-    return _out(_dh_a(_temperature(temperature, "Pitzer A_phi")) * math.log(10) / 3)
+    return _out(_dh_a(checked_temperature(temperature, "Pitzer A_phi")) * math.log(10) / 3)

@@ -95,14 +95,14 @@ def test_standard_for_activity():
 @pytest.mark.parametrize(
     "kwargs,err,fragment",
     [
-        (dict(ion="Na+", activity=-1e-3), InputError, "-0.001"),
-        (dict(ion="Na+", activity=0.0), InputError, "positive"),
-        (dict(ion="Na+", activity=float("nan")), InputError, "nan"),
-        (dict(ion="Xe+", activity=1e-3), UnknownSpeciesError, "Xe+"),
-        (dict(ion="Qq+", activity=1e-3), InputError, "Qq"),
-        (dict(ion="Na+", activity=1e-3, counter_ion="K+"), InputError, "same sign"),
-        (dict(ion="F-", activity=1e-3, counter_ion="Cl-"), InputError, "opposite"),
-        (dict(ion="Na+", activity=0.5, model="limiting"), InputError, "largest reachable activity"),
+        (dict(analyte="Na+", activity=-1e-3), InputError, "-0.001"),
+        (dict(analyte="Na+", activity=0.0), InputError, "positive"),
+        (dict(analyte="Na+", activity=float("nan")), InputError, "nan"),
+        (dict(analyte="Xe+", activity=1e-3), UnknownSpeciesError, "Xe+"),
+        (dict(analyte="Qq+", activity=1e-3), InputError, "Qq"),
+        (dict(analyte="Na+", activity=1e-3, counter_ion="K+"), InputError, "same sign"),
+        (dict(analyte="F-", activity=1e-3, counter_ion="Cl-"), InputError, "opposite"),
+        (dict(analyte="Na+", activity=0.5, model="limiting"), InputError, "largest reachable activity"),
     ],
 )
 def test_bad_input(kwargs, err, fragment):
@@ -147,10 +147,10 @@ def test_nikolsky_eisenman_hand_case():
 
 def test_temperature_error():
     # calibrated and measured at the same temperature: no error
-    e = temperature_error(1e-3, 1, 25.0, 25.0, ionic_strength=0.1)
+    e = temperature_error(1e-3, 1, calibration_temperature=25.0, measurement_temperature=25.0, ionic_strength=0.1)
     assert e.error_percent == pytest.approx(0.0, abs=1e-12)
     # at the isopotential point only γ changes
-    e = temperature_error(1.0, 1, 20.0, 30.0, ionic_strength=0.1)
+    e = temperature_error(1.0, 1, calibration_temperature=20.0, measurement_temperature=30.0, ionic_strength=0.1)
     assert e.activity_ratio == pytest.approx(1.0)
     g = ia.models.davies(1, 0.1, 30.0) / ia.models.davies(1, 0.1, 20.0)
     assert e.concentration_ratio == pytest.approx(g)

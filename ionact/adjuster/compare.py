@@ -6,7 +6,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 from typing import Any
 
-from .._frozen import frozen_map
+from .._frozen import Record, frozen_map
 from ..errors import InfeasibleDesignError, InputError
 from .design import AdjusterDesign
 
@@ -14,7 +14,7 @@ __all__ = ["AdjusterComparison", "CandidateRow", "compare_adjusters"]
 
 
 @dataclass(frozen=True)
-class CandidateRow:
+class CandidateRow(Record):
     """One candidate's standing, read from its design's check fields (never from text)."""
 
     candidate: str
@@ -30,12 +30,6 @@ class CandidateRow:
     def rank_key(self) -> tuple[Any, ...]:
         return (not self.feasible, bool(self.failed), bool(self.not_assessed), self.interference_mv or 0.0,
                 self.total_stock or 0.0, self.saturation or 0.0)
-
-    def to_dict(self) -> dict[str, Any]:
-        return {"candidate": self.candidate, "feasible": self.feasible, "total_stock_mol_l": self.total_stock,
-                "saturation": self.saturation, "worst_error_mv": self.worst_error_mv,
-                "interference_mv": self.interference_mv, "not_assessed": list(self.not_assessed),
-                "failed": list(self.failed), "note": self.note}
 
 
 def _row(name: str, d: AdjusterDesign) -> CandidateRow:

@@ -93,13 +93,13 @@ def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True)
     lo, hi = (float(np.nanmin(i)), float(np.nanmax(i))) if i.size and not np.all(np.isnan(i)) else (0.0, 0.0)
     if lo < 0:
         raise InputError(f"{model}: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative; allowed: ≥ 0")
-    t = water._temperature(temperature, model)
+    t = water.checked_temperature(temperature, model)
     try:
         np.broadcast_shapes(z.shape, i.shape, t.shape)
     except ValueError:
         raise InputError(f"{model}: charge {z.shape}, ionic strength {i.shape} and temperature {t.shape} have shapes "
                          "that do not broadcast") from None
-    a = water._dh_a(t)
+    a = water.dh_a_array(t)
     if warn and model in RANGES and hi > RANGES[model] and np.isfinite(hi):
         warn_range(
             f"model {model}: ionic strength {hi:.4g} mol/kg is above its range "
@@ -124,7 +124,7 @@ def _size(size, model):
     return s
 
 
-def limiting(charge, ionic_strength, temperature=25.0):
+def limiting(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     """Debye–Hückel limiting law (1923): log10 γ = −A z² √I.
 
     Parameters
@@ -155,7 +155,7 @@ def limiting(charge, ionic_strength, temperature=25.0):
     return _gamma(_lg_limiting(z * z, np.sqrt(i), a))
 
 
-def extended_debye_huckel(charge, ionic_strength, size, temperature=25.0):
+def extended_debye_huckel(charge, ionic_strength, size, *, temperature=25.0) -> float | np.ndarray:
     """Extended Debye–Hückel: log10 γ = −A z² √I / (1 + B å √I).
 
     Parameters
@@ -179,11 +179,11 @@ def extended_debye_huckel(charge, ionic_strength, size, temperature=25.0):
     0.675
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "extended")
-    b = water._dh_b(t)
+    b = water.dh_b_array(t)
     return _gamma(_lg_extended(z * z, np.sqrt(i), a, b, _size(size, "extended")))
 
 
-def guntelberg(charge, ionic_strength, temperature=25.0):
+def guntelberg(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     """Güntelberg (1926): log10 γ = −A z² √I / (1 + √I).
 
     Examples
@@ -195,7 +195,7 @@ def guntelberg(charge, ionic_strength, temperature=25.0):
     return _gamma(_lg_guntelberg(z * z, np.sqrt(i), a))
 
 
-def davies(charge, ionic_strength, temperature=25.0, coefficient=DAVIES_COEFFICIENT):
+def davies(charge, ionic_strength, temperature=25.0, *, coefficient=DAVIES_COEFFICIENT) -> float | np.ndarray:
     """Davies (1962): log10 γ = −A z² (√I/(1 + √I) − c I), c = 0.3 by default.
 
     Parameters
@@ -222,7 +222,7 @@ def davies(charge, ionic_strength, temperature=25.0, coefficient=DAVIES_COEFFICI
     return _gamma(_lg_davies(z * z, np.sqrt(i), i, a, coefficient))
 
 
-def truesdell_jones(charge, ionic_strength, a_size, b_ion, temperature=25.0):
+def truesdell_jones(charge, ionic_strength, a_size, *, b_ion, temperature=25.0) -> float | np.ndarray:
     """Truesdell–Jones (1974): log10 γ = −A z² √I / (1 + B a √I) + b I.
 
     Parameters
@@ -239,16 +239,16 @@ def truesdell_jones(charge, ionic_strength, a_size, b_ion, temperature=25.0):
 
     Examples
     --------
-    >>> round(truesdell_jones(1, 0.5, 4.0, 0.075), 3)  # Na+
+    >>> round(truesdell_jones(1, 0.5, 4.0, b_ion=0.075), 3)  # Na+
     0.708
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "truesdell-jones")
-    b = water._dh_b(t)
+    b = water.dh_b_array(t)
     return _gamma(_lg_truesdell_jones(z * z, np.sqrt(i), i, a, b, _size(a_size, "truesdell-jones"),
                                       np.asarray(b_ion, dtype=float)))
 
 
-def b_dot(charge, ionic_strength, size, temperature=25.0, bdot=B_DOT):
+def b_dot(charge, ionic_strength, size, *, temperature=25.0, bdot=B_DOT) -> float | np.ndarray:
     """B-dot (Helgeson 1969): extended Debye–Hückel plus Ḃ I, Ḃ = 0.041 kg/mol at 25 °C.
 
     Warns
@@ -264,11 +264,11 @@ def b_dot(charge, ionic_strength, size, temperature=25.0, bdot=B_DOT):
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "b-dot")
     if np.any(np.abs(t - 25.0) > 5.0):
         warn_range(f"model b-dot: Ḃ = {bdot} is a 25 °C value; temperature outside 20–30 °C")
-    b = water._dh_b(t)
+    b = water.dh_b_array(t)
     return _gamma(_lg_b_dot(z * z, np.sqrt(i), i, a, b, _size(size, "b-dot"), bdot))
 
 
-def bates_guggenheim(ionic_strength, temperature=25.0, charge=-1):
+def bates_guggenheim(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     """Bates–Guggenheim convention: log10 γ_Cl = −A √I / (1 + 1.5 √I), for I ≤ 0.1 mol/kg.
 
     The convention that fixes single-ion activity in the definition of pH (IUPAC 2002,
@@ -276,14 +276,14 @@ def bates_guggenheim(ionic_strength, temperature=25.0, charge=-1):
 
     Examples
     --------
-    >>> round(bates_guggenheim(0.1), 3)
+    >>> round(bates_guggenheim(-1, 0.1), 3)
     0.777
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "bates-guggenheim")
     return _gamma(_lg_bates_guggenheim(z * z, np.sqrt(i), a))
 
 
-def setschenow(ionic_strength, k=SETSCHENOW_DEFAULT):
+def setschenow(ionic_strength, k=SETSCHENOW_DEFAULT) -> float | np.ndarray:
     """Setschenow form for neutral solutes: log10 γ = k I (k ≈ 0.1 kg/mol when unknown).
 
     Examples

@@ -223,7 +223,7 @@ def _association_warning(batch: Batch, lg: np.ndarray, model: str) -> list[Viola
             if not np.any(sel):
                 continue
             a = 0.5 * ((batch.ions[i].size or 4.0) + (batch.ions[j].size or 4.0)) * 1e-10
-            lb = water._bjerrum_kappa(batch.t[sel])[0]
+            lb = water.bjerrum_kappa(batch.t[sel])[0]
             k_a = 4.0 / 3.0 * math.pi * a**3 * water.AVOGADRO * 1000.0 * np.exp(batch.z[i] * -batch.z[j] * lb / a)
             # γ by the Güntelberg form (bounded at any I) so the estimate does not inherit a model's extrapolation
             sq = np.sqrt(batch.ionic[sel])

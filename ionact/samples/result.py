@@ -116,9 +116,36 @@ class SampleCheck:
                  "gamma_error_mv": float(self.error_mv[i]), "gamma_error_percent": float(self.error_percent[i]),
                  "reason": self.reason[i]} for i in range(len(self))]
         return plain({"format": REPORT_FORMAT, "version": REPORT_VERSION, "model": self.model,
-                      "analyte_unit": self.unit, "ionic_strength_unit": "mol/kg", "counts": self.counts(),
+                      "analyte_unit": self.unit, "unit_factor_mol_per_l": self.unit_factor,
+                      "ionic_strength_unit": "mol/kg", "counts": self.counts(),
                       "calibration_range_mol_per_l": list(self.calibration_range), "envelope": list(self.envelope),
                       "dilutions": list(self.dilutions), "rows": rows})
+
+    @classmethod
+    def from_dict(cls, d: Mapping[str, Any]) -> SampleCheck:
+        """Read a report back from :meth:`to_dict` output (the ``--json`` of ``ionact check``)."""
+        from ..errors import InputError
+
+        if not isinstance(d, Mapping) or d.get("format") != REPORT_FORMAT or d.get("version") != REPORT_VERSION:
+            raise InputError(f"not an ionact batch report of version {REPORT_VERSION}")
+        rows = d.get("rows")
+        if not isinstance(rows, list):
+            raise InputError("batch report rows must be a list")
+        unit = str(d.get("analyte_unit", "mol/L"))
+        factor = float(d.get("unit_factor_mol_per_l", 1.0))
+
+        def col(k: str) -> np.ndarray:
+            return np.array([np.nan if r.get(k) is None else r[k] for r in rows], dtype=float)
+
+        def text(k: str) -> tuple[str, ...]:
+            return tuple(str(r.get(k, "")) for r in rows)
+
+        return cls(text("sample_id"), text("status"), text("reason"), col("dilution"), col("ionic_strength"),
+                   text("ionic_strength_source"), col("analyte") * factor, col("treated_analyte") * factor,
+                   col("treated_ionic_strength"), col("gamma_error_mv"), col("gamma_error_percent"),
+                   tuple(float(x) for x in d.get("dilutions", ())), {},
+                   tuple(d.get("calibration_range_mol_per_l", (0.0, 0.0))), tuple(d.get("envelope", (0.0, 0.0))),
+                   str(d.get("model", "")), unit, factor)
 
     def to_pandas(self, index: Any = None) -> Any:
         """The report as a pandas DataFrame (pandas is imported only here), on ``index`` if given."""
