@@ -283,7 +283,8 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
     if not np.all(np.isfinite(a)) or np.any(a <= 0):
         bad = a[~(np.isfinite(a) & (a > 0))].flat[0]
         raise InputError(f"activity {float(bad):g} of {an.name} is not positive and finite; allowed: > 0")
-    if matrix is not None and temperature is not None and np.any(np.asarray(temperature) != np.asarray(matrix.temperature)):
+    if (matrix is not None and temperature is not None
+            and np.any(np.asarray(temperature) != np.asarray(matrix.temperature))):
         raise InputError(f"temperature {temperature!r} differs from the matrix's {matrix.temperature!r}; "
                          "set the temperature on the matrix")
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
