@@ -31,11 +31,27 @@ __all__ = [
 ]
 
 
+_UNSET = object()
+
+
 class IonactError(Exception):
-    """Base class of every error ``ionact`` raises for a caller's input."""
+    """Base class of every error ``ionact`` raises for a caller's input.
+
+    Besides the message, an error carries structured fields where the raising code knows
+    them: ``value`` (the offending value), ``allowed`` (the allowed range or set, as text)
+    and ``field`` (the argument, column or file field it came from); None when not given.
+    """
+
+    def __init__(self, message: object = "", *, value: object = _UNSET, allowed: str | None = None,
+                 field: str | None = None) -> None:
+        super().__init__(message)
+        self.value = None if value is _UNSET else value
+        self.has_value = value is not _UNSET
+        self.allowed = allowed
+        self.field = field
 
 
-class InputError(ValueError, IonactError):
+class InputError(IonactError, ValueError):
     """A value is malformed, out of its allowed range, NaN, negative, or inconsistent."""
 
 
@@ -43,14 +59,14 @@ class UnitError(InputError):
     """A unit string is unknown or has the wrong dimension for the quantity asked."""
 
 
-class UnknownSpeciesError(KeyError, IonactError):
+class UnknownSpeciesError(IonactError, KeyError):
     """An ion or salt is not known (not in the tables and not parseable)."""
 
     def __str__(self) -> str:  # KeyError quotes its message; we want it plain
         return str(self.args[0]) if self.args else ""
 
 
-class MissingParameterError(KeyError, IonactError):
+class MissingParameterError(IonactError, KeyError):
     """A model needs a parameter (a Pitzer pair, an SIT ε, an ion size) the tables lack."""
 
     def __str__(self) -> str:

@@ -172,7 +172,8 @@ def _refuse_text(text: str, label: str) -> None:
         if re.match(r"^\s*[+-]?\d{1,3},\d{3}(?!\d)", text):
             raise InputError(f"amount{label} {text!r} has a comma in its number: write it with a point as the decimal "
                              "mark and no thousands separator")
-        raise InputError(f"amount{label} {text!r} uses a decimal comma; write {fixed!r} (a point as the decimal mark)")
+        raise InputError(f"amount{label} {text!r} uses a decimal comma; write {fixed!r} (a point as the decimal mark)",
+                         value=text, allowed="a point as the decimal mark")
 
 
 def _split(text: str, label: str) -> tuple[float, str | None, str | None]:
@@ -283,11 +284,12 @@ def _check_values(arr: np.ndarray, label: str, original: object) -> None:
     if not np.all(np.isfinite(arr)):
         bad = arr[~np.isfinite(arr)].flat[0]
         shown = repr(original) if isinstance(original, str) else f"{float(bad):g}"
-        raise InputError(f"amount{label} {shown} is NaN or infinite; allowed: finite, ≥ 0")
+        raise InputError(f"amount{label} {shown} is NaN or infinite; allowed: finite, ≥ 0", value=original,
+                         allowed="finite, ≥ 0")
     if np.any(arr < 0):
         bad = arr[arr < 0].flat[0]
         shown = repr(original) if isinstance(original, str) else f"{float(bad):g}"
-        raise InputError(f"amount{label} {shown} is negative; allowed: ≥ 0")
+        raise InputError(f"amount{label} {shown} is negative; allowed: ≥ 0", value=original, allowed="≥ 0")
 
 
 def _parse_string(text: str, ion: Ion | None, label: str, molar_mass: float | None) -> Amount:

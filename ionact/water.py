@@ -67,7 +67,8 @@ def checked_temperature(t: object, what: str) -> np.ndarray:
         hint = (f"; it looks like kelvin — {bad:g} K is {bad - ZERO_CELSIUS:.2f} °C" if bad > KELVIN_HINT
                 else "")
         raise InputError(f"{what}: temperature {bad:g} °C is outside liquid water's {T_MIN:g}–{T_MAX:g} °C "
-                         f"(allowed with a warning down to {T_MARGIN_LOW:g} and up to {T_MARGIN_HIGH:g} °C){hint}")
+                         f"(allowed with a warning down to {T_MARGIN_LOW:g} and up to {T_MARGIN_HIGH:g} °C){hint}",
+                         value=bad, allowed=f"{T_MIN:g}–{T_MAX:g} °C", field=what)
     if finite.size and (finite.min() < T_MIN or finite.max() > T_MAX):
         bad = float(finite.min() if finite.min() < T_MIN else finite.max())
         warn_range(f"{what}: temperature {bad:g} °C is outside 0–100 °C")

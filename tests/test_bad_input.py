@@ -417,3 +417,15 @@ def test_closed_pipe_ends_quietly():
     p = subprocess.run(f"{sys.executable} -m ionact demo | head -1", shell=True, capture_output=True, text=True,
                        timeout=120)
     assert p.stdout.count("\n") == 1 and "Traceback" not in p.stderr and "BrokenPipe" not in p.stderr
+
+
+@pytest.mark.parametrize("fn,value,allowed", [
+    (lambda: ia.Budget(mv=-1), -1, "(0, 100]"),
+    (lambda: parse_amount("0,1 mol/kg"), "0,1 mol/kg", "a point as the decimal mark"),
+    (lambda: parse_amount(-2.0), -2.0, "≥ 0"),
+    (lambda: ia.water.density(150.0), 150.0, "0–100 °C"),
+])
+def test_errors_carry_the_value_and_the_allowed_range_as_fields(fn, value, allowed):
+    with pytest.raises(InputError) as info:
+        fn()
+    assert info.value.value == value and info.value.allowed == allowed

@@ -72,7 +72,8 @@ def test_vectorised_over_activities_and_batch_matrix():
 def test_units_out_and_in():
     r = activity_from_concentration("NO3-", "10 mg/L as N", model="davies")
     assert r.concentration("mg/L as N") == pytest.approx(10.0, rel=1e-12)
-    assert r.concentration("mg/L") == pytest.approx(10.0 * 4.4268, rel=1e-3)  # DOMAIN §2: ×4.427
+    # 1 mg/L NO3-N = 4.427 mg/L NO3- (common practice)
+    assert r.concentration("mg/L") == pytest.approx(10.0 * 4.4268, rel=1e-3)
     r = concentration_from_activity("F-", 1e-4, model="davies")
     assert r.concentration("mg/L") == pytest.approx(r.molality * r.solution.water_per_litre * 18998.4, rel=1e-4)
 

@@ -10,7 +10,7 @@ from ionact.errors import InputError, MissingParameterError, UnitError, UnknownS
 
 
 # Ionic strength of a salt solution of molality m: 1:1 -> m, 2:1 and 1:2 -> 3m, 2:2 -> 4m,
-# 3:1 -> 6m (DOMAIN §2, common practice; I = ½ Σ m z²).
+# 3:1 -> 6m (common practice; I = ½ Σ m z²).
 @pytest.mark.parametrize(
     "salt,factor", [("NaCl", 1), ("KNO3", 1), ("CaCl2", 3), ("Na2SO4", 3), ("MgSO4", 4), ("LaCl3", 6), ("AlCl3", 6)]
 )
@@ -36,7 +36,7 @@ def test_molarity_to_molality_nacl():
 
 
 def test_density_model_salt_volume_sums():
-    # DOMAIN §2 (Millero 1972, from memory): V°(NaCl) = 16.6, V°(KCl) = 26.8, V°(KNO3) = 38.0
+    # Millero 1972 (from memory): V°(NaCl) = 16.6, V°(KCl) = 26.8, V°(KNO3) = 38.0
     for salt, v in [("NaCl", 16.6), ("KCl", 26.8), ("KNO3", 38.0)]:
         s = ia.Salt.parse(salt)
         total = sum(ia.Ion.parse(i).volume * n for i, n in s.ions)
@@ -155,7 +155,7 @@ def test_unknown_salt():
 
 
 def test_estimates_name_their_rule():
-    # DOMAIN §2 rules of thumb: Russell 1976 1.6e-5, Griffin & Jurinak 1973 1.3e-5 (per µS/cm),
+    # rules of thumb (from memory): Russell 1976 1.6e-5, Griffin & Jurinak 1973 1.3e-5 (per µS/cm),
     # Langelier 1936 2.5e-5 (per mg/L TDS); all from memory
     e = ia.ionic_strength_from_conductivity(1000.0)
     assert e.value == pytest.approx(0.016) and e.rule == "russell" and "Russell" in e.source

@@ -95,7 +95,7 @@ def test_explicit_ion_mapping():
 
 
 def test_ionic_strength_factors():
-    # DOMAIN §2 (common practice): 1:1 -> 1, 2:1 -> 3, 2:2 -> 4, 3:1 -> 6
+    # common practice: 1:1 -> 1, 2:1 -> 3, 2:2 -> 4, 3:1 -> 6
     assert ia.Salt.parse("NaCl").ionic_strength_factor == 1
     assert ia.Salt.parse("CaCl2").ionic_strength_factor == 3
     assert ia.Salt.parse("Na2SO4").ionic_strength_factor == 3

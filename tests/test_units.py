@@ -22,7 +22,7 @@ from ionact.units import convert_amount, parse_amount
         ("35.45 mg/L", "Cl-", 1e-3, "molar"),
         ("19 µg/L", "F-", 1e-6, "molar"),
         ("2 meq/L", "Ca^2+", 1e-3, "molar"),
-        # DOMAIN §2 (common practice): 1 mg/L NO3-N is 1/14.007 mmol/L of nitrate
+        # common practice: 1 mg/L NO3-N is 1/14.007 mmol/L of nitrate
         ("14.007 mg/L as N", "NO3-", 1e-3, "molar"),
         ("14.007 mg/L as N", "NH4+", 1e-3, "molar"),
         # 50.04 g CaCO3 per equivalent (common practice): 100.08 mg/L as CaCO3 = 1 mmol/L Ca
@@ -36,7 +36,7 @@ def test_parse_amounts(text, ion, value, basis):
 
 
 def test_nitrate_as_n_factor():
-    # DOMAIN §2 (common practice): 1 mg/L NO3-N = 4.427 mg/L NO3-
+    # common practice: 1 mg/L NO3-N = 4.427 mg/L NO3-
     as_n = parse_amount("1 mg/L as N", "NO3-").value
     plain = parse_amount("4.427 mg/L", "NO3-").value
     assert as_n == pytest.approx(plain, rel=1e-3)

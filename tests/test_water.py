@@ -47,7 +47,7 @@ def test_debye_huckel_a_against_iapws(t):
 
 
 def test_published_25c_values():
-    # DOMAIN §3: A ≈ 0.510, B ≈ 0.328 1/Å at 25 °C (from IAPWS water)
+    # A ≈ 0.510, B ≈ 0.328 1/Å at 25 °C (from IAPWS water)
     assert water.debye_huckel_a(25.0) == pytest.approx(0.510, abs=0.0015)
     assert water.debye_huckel_b(25.0) == pytest.approx(0.328, abs=0.0015)
     # Archer & Wang 1990 (from memory): A_phi = 0.3915 at 25 °C

@@ -66,7 +66,8 @@ class RecipeLine:
 
 
 def _num(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> float:
-    bad = InputError(f"design field {what} {str(v)[:40]!r} must be a finite number in {lo:g}–{hi:g}")
+    bad = InputError(f"design field {what} {str(v)[:40]!r} must be a finite number in {lo:g}–{hi:g}", value=v,
+                     allowed=f"{lo:g}–{hi:g}", field=what)
     if isinstance(v, bool) or not isinstance(v, int | float):
         raise bad
     try:

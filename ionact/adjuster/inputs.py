@@ -42,16 +42,17 @@ MAX_VOLUME_RATIO = 10.0
 
 def number(value: object, name: str, lo: float = -math.inf, hi: float = math.inf, lo_open: bool = False) -> float:
     """A finite float within [lo, hi] (or (lo, hi] with lo_open), else InputError naming the value."""
+    rng = f"{'(' if lo_open else '['}{lo:g}, {hi:g}]"
     if isinstance(value, bool) or not isinstance(value, int | float | np.integer | np.floating):
-        raise InputError(f"{name} {value!r} is not a number")
+        raise InputError(f"{name} {value!r} is not a number", value=value, allowed=rng, field=name)
     try:
         v = float(value)
     except OverflowError:
-        raise InputError(f"{name} {str(value)[:20]}… is far outside the allowed range [{lo:g}, {hi:g}]") from None
+        raise InputError(f"{name} {str(value)[:20]}… is far outside the allowed range {rng}", value=value,
+                         allowed=rng, field=name) from None
     bad_lo = v <= lo if lo_open else v < lo
     if not math.isfinite(v) or bad_lo or v > hi:
-        rng = f"{'(' if lo_open else '['}{lo:g}, {hi:g}]"
-        raise InputError(f"{name} {value!r} is outside the allowed range {rng}")
+        raise InputError(f"{name} {value!r} is outside the allowed range {rng}", value=value, allowed=rng, field=name)
     return v
 
 

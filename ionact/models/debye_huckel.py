@@ -27,7 +27,7 @@ __all__ = [
     "SETSCHENOW_DEFAULT",
 ]
 
-# Usual upper ionic strengths, mol/kg (DOMAIN §4; common practice, not sharp limits).
+# Usual upper ionic strengths, mol/kg (common practice, not sharp limits).
 RANGES = {
     "limiting": 0.005,
     "extended": 0.1,

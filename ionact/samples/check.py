@@ -22,7 +22,6 @@ from typing import Any
 
 import numpy as np
 
-from .. import water
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
 from ..electrode import nernst_slope
@@ -208,17 +207,21 @@ def _lg(choice: ModelChoice, ions: tuple[Ion, ...], c: np.ndarray, method: Metho
     return log10_gamma(choice, b), b.ionic
 
 
-def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray, rho_w: float
-            ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """γ error (mV), treated analyte (mol/L) and treated I (mol/kg) per sample × dilution."""
+def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray
+            ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """γ error (mV), treated analyte (mol/L), treated I (mol/kg) and log10 γ per sample × dilution."""
     n, D = len(vals.ids), dil.size
     valid = vals.valid
     nI = len(core.ions)
     cm = np.zeros((nI, n))
     from_ions = np.array([s == "ions" for s in vals.sources])
     i_bg = np.where(valid & ~from_ions, vals.ionic, 0.0)
-    for idx, nu in core.bg:
-        cm[idx] += nu * i_bg / core.bg_factor * rho_w
+    # the background salt at the sample's ionic strength, mol/kg -> mol/L through the one density model
+    bg_ions = [core.ions[idx] for idx, _ in core.bg]
+    m_bg = np.array([nu * i_bg / core.bg_factor for _, nu in core.bg])
+    w_bg = water_per_litre(bg_ions, method.temperature, molal=m_bg, density=method.density)
+    for (idx, _), m in zip(core.bg, m_bg, strict=True):
+        cm[idx] += m * w_bg
     for name, (_ion, c) in vals.ions.items():
         cm[core.names.index(name)] += np.where(valid & from_ions, c, 0.0)
     an = np.where(valid, vals.analyte, 0.0)
@@ -229,7 +232,7 @@ def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray, rho_w
     lga = lg[core.k].reshape(n, D)
     slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     err = slope * np.maximum(np.abs(lga - core.lg_std.min()), np.abs(lga - core.lg_std.max()))
-    return err, an[:, None] / dil[None, :] / (1 + r), ionic.reshape(n, D)
+    return err, an[:, None] / dil[None, :] / (1 + r), ionic.reshape(n, D), lga
 
 
 def check_samples(
@@ -307,8 +310,7 @@ def check_samples(
     dil = _dilutions(dilutions)
     cal = _calibration(calibration_range, method)
     cols, row_errors, delim, dec, file_units = _columns(samples)
-    rho_w = float(water.density(method.temperature)) / 1000.0
-    specs = column_specs(list(cols), {**file_units, **dict(units or {})}, method.analyte, analyte_unit, rho_w)
+    specs = column_specs(list(cols), {**file_units, **dict(units or {})}, method.analyte, analyte_unit)
     rules = _rules(rule)
     vals = row_values(specs, cols, row_errors, delimiter=delim, decimal_comma=dec, temperature=method.temperature,
                       conductivity_rule=rules["conductivity"], tds_rule=rules["tds"],
@@ -320,18 +322,19 @@ def check_samples(
     err = np.full((n, dil.size), np.nan)
     t_an = np.full((n, dil.size), np.nan)
     t_i = np.full((n, dil.size), np.nan)
+    lg = np.full((n, dil.size), np.nan)
     for start in range(0, n, CHUNK):
         sl = slice(start, min(n, start + CHUNK))
         part = RowValues(vals.ids[sl], vals.analyte[sl], vals.ionic[sl], vals.sources[sl],
                          {k: (ion, c[sl]) for k, (ion, c) in vals.ions.items()}, vals.reasons[sl])
-        err[sl], t_an[sl], t_i[sl] = _errors(core, method, part, dil, rho_w)
+        err[sl], t_an[sl], t_i[sl], lg[sl] = _errors(core, method, part, dil)
         if progress:
             _progress(sl.stop, n)
     if progress and n and sys.stderr.isatty():
         sys.stderr.write("\n")
     unit = next(s.unit for s in specs if s.role == "analyte") or "mol/L"
     factor = next(s.factor for s in specs if s.role == "analyte")
-    return _classify(vals, method, dil, cal, err, t_an, t_i, core, unit, factor)
+    return _classify(vals, method, dil, cal, err, t_an, t_i, lg, core, unit, factor)
 
 
 def _rules(rule: str | Mapping[str, str] | None) -> dict[str, str]:
@@ -375,7 +378,8 @@ def _duplicates(vals: RowValues) -> None:
 
 
 def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float, float], err: np.ndarray,
-              t_an: np.ndarray, t_i: np.ndarray, core: _Core, unit: str, factor: float) -> SampleCheck:
+              t_an: np.ndarray, t_i: np.ndarray, lg: np.ndarray, core: _Core, unit: str, factor: float
+              ) -> SampleCheck:
     """Statuses and reasons in words; every number was computed for the whole batch at once."""
     valid = vals.valid
     analyte, i_val = vals.analyte, vals.ionic
@@ -407,6 +411,7 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
         ionic_strength_source=tuple(s if valid[i] or s else "" for i, s in enumerate(vals.sources)),
         analyte=analyte, treated_analyte=np.where(valid, t_an[rows, idx], np.nan),
         treated_ionic_strength=np.where(valid, t_i[rows, idx], np.nan), error_mv=e,
+        gamma=np.where(valid, np.power(10.0, lg[rows, idx]), np.nan),
         error_percent=np.where(valid, (np.power(10.0, e / slope) - 1) * 100, np.nan),
         dilutions=tuple(float(x) for x in dil),
         by_dilution={"treated_analyte": t_an, "treated_ionic_strength": t_i, "error_mv": err, "ok": good},

@@ -74,7 +74,7 @@ def _concentration_factor(unit: str, ion: Ion, header: str) -> float:
     return float(a.value)
 
 
-def _spec(header: str, unit: str | None, analyte: Ion, analyte_unit: str | None, rho_w: float) -> ColumnSpec:
+def _spec(header: str, unit: str | None, analyte: Ion, analyte_unit: str | None) -> ColumnSpec:
     name, head_unit = split_header(header)
     unit = head_unit or unit
     if name == "sample_id":
@@ -90,9 +90,9 @@ def _spec(header: str, unit: str | None, analyte: Ion, analyte_unit: str | None,
             kind, f = unit_kind(u)
         except UnitError as exc:
             raise InputError(f"column {header!r}: {exc}") from None
-        if kind not in ("molal", "molar"):
-            raise InputError(f"column {header!r}: unit {u!r} is not an ionic strength unit (mol/kg, mmol/kg, mol/L)")
-        return ColumnSpec(header, name, "ionic_strength", u, f if kind == "molal" else f / rho_w)
+        if kind != "molal":
+            raise InputError(f"column {header!r}: unit {u!r} is not a molal ionic strength unit (mol/kg, mmol/kg)")
+        return ColumnSpec(header, name, "ionic_strength", u, f)
     if name == "conductivity":
         u = unit or "uS/cm"
         return ColumnSpec(header, name, "conductivity", u, parse_scalar(f"1 {u}", "uS/cm", f"column {header!r}"))
@@ -127,13 +127,13 @@ def _spec(header: str, unit: str | None, analyte: Ion, analyte_unit: str | None,
     return ColumnSpec(header, name, "ion", unit, _concentration_factor(unit, ion, header), ion)
 
 
-def column_specs(headers: Sequence[str], units: Mapping[str, str], analyte: Ion, analyte_unit: str | None,
-                 rho_w: float) -> list[ColumnSpec]:
+def column_specs(headers: Sequence[str], units: Mapping[str, str], analyte: Ion, analyte_unit: str | None
+                 ) -> list[ColumnSpec]:
     """The meaning of every column; InputError naming a column whose header cannot be used."""
     specs = []
     for h in headers:
         name, _ = split_header(h)
-        specs.append(_spec(h, units.get(h) or units.get(name), analyte, analyte_unit, rho_w))
+        specs.append(_spec(h, units.get(h) or units.get(name), analyte, analyte_unit))
     names = [s.name for s in specs if s.role != "other"]
     dup = sorted({n for n in names if names.count(n) > 1})
     if dup:

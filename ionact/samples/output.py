@@ -191,9 +191,10 @@ class BatchSummary:
         a = np.concatenate([p[1] for p in self._points]) if self._points else np.zeros(0)
         s = np.concatenate([p[2] for p in self._points]) if self._points else np.zeros(0, dtype=np.int8)
         f = self._points[0][3] if self._points else 1.0
-        fake = SampleCheck(tuple([""] * n), tuple(STATUSES[k] for k in s), tuple([""] * n), np.full(n, np.nan), i,
-                           tuple([""] * n), a, np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan),
-                           np.full(n, np.nan), (), {}, self.calibration_range, self.envelope, self.model, self.unit, f)
+        nan = np.full(n, np.nan)
+        fake = SampleCheck(tuple([""] * n), tuple(STATUSES[k] for k in s), tuple([""] * n), nan, i,
+                           tuple([""] * n), a, nan, nan, nan, nan, nan, (), {}, self.calibration_range, self.envelope,
+                           self.model, self.unit, f)
         return fake.plot()
 
 

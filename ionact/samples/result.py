@@ -39,6 +39,7 @@ class SampleCheck:
     treated_ionic_strength: np.ndarray
     error_mv: np.ndarray
     error_percent: np.ndarray
+    gamma: np.ndarray  # γ of the analyte in the treated sample at the chosen dilution
     dilutions: tuple[float, ...]
     by_dilution: Mapping[str, np.ndarray] = field(repr=False)
     calibration_range: tuple[float, float] = (0.0, 0.0)
@@ -49,7 +50,7 @@ class SampleCheck:
 
     def __post_init__(self) -> None:
         for name in ("dilution", "ionic_strength", "analyte", "treated_analyte", "treated_ionic_strength",
-                     "error_mv", "error_percent"):
+                     "error_mv", "error_percent", "gamma"):
             object.__setattr__(self, name, readonly(getattr(self, name)))
         by = {}
         for k, v in self.by_dilution.items():
@@ -114,6 +115,7 @@ class SampleCheck:
                  "ionic_strength_source": self.ionic_strength_source[i],
                  "treated_ionic_strength": float(self.treated_ionic_strength[i]),
                  "gamma_error_mv": float(self.error_mv[i]), "gamma_error_percent": float(self.error_percent[i]),
+                 "gamma": float(self.gamma[i]),
                  "reason": self.reason[i]} for i in range(len(self))]
         return plain({"format": REPORT_FORMAT, "version": REPORT_VERSION, "model": self.model,
                       "analyte_unit": self.unit, "unit_factor_mol_per_l": self.unit_factor,
@@ -142,7 +144,7 @@ class SampleCheck:
 
         return cls(text("sample_id"), text("status"), text("reason"), col("dilution"), col("ionic_strength"),
                    text("ionic_strength_source"), col("analyte") * factor, col("treated_analyte") * factor,
-                   col("treated_ionic_strength"), col("gamma_error_mv"), col("gamma_error_percent"),
+                   col("treated_ionic_strength"), col("gamma_error_mv"), col("gamma_error_percent"), col("gamma"),
                    tuple(float(x) for x in d.get("dilutions", ())), {},
                    tuple(d.get("calibration_range_mol_per_l", (0.0, 0.0))), tuple(d.get("envelope", (0.0, 0.0))),
                    str(d.get("model", "")), unit, factor)
