@@ -35,7 +35,9 @@ from .conversion import (
     standard_for_activity,
 )
 from .electrode import mv_to_relative_error, nernst_slope, nikolsky_eisenman, relative_error_to_mv, temperature_error
+from .equilibrium import Complex, Speciation, ph_of, speciate
 from .errors import (
+    ConvergenceError,
     InfeasibleDesignError,
     InputError,
     IonactError,
@@ -91,6 +93,11 @@ __all__ = [
     "StockComponent",
     "check_samples",
     "SampleCheck",
+    "speciate",
+    "ph_of",
+    "Speciation",
+    "Complex",
+    "ConvergenceError",
     "IonactError",
     "InputError",
     "UnitError",

@@ -21,7 +21,7 @@ from .electrode import nernst_slope
 from .errors import InputError, MissingParameterError, ValidityRangeWarning, strict, warn_range
 from .models import pitzer as pz
 from .models.registry import MODELS, Batch, ModelInfo, get_model
-from .models.resolver import ModelChoice, choice_for, evaluate, resolve_model
+from .models.resolver import ModelChoice, choice_for, resolve_model
 from .solution import Solution
 from .species import Ion, Salt
 
@@ -78,6 +78,8 @@ class ActivityCoefficients(Mapping):
         self.ionic_strength = ionic_strength
         self.violations = tuple(str(v) for v in violations)
         self.in_range = not any(getattr(v, "kind", "ionic-strength") == "ionic-strength" for v in violations)
+        self.free: dict[str, Any] = dict(gammas)  # free-ion γ (the same as the values without equilibrium)
+        self.speciation: Any = None
 
     def __getitem__(self, key):
         if key in self._g:
@@ -137,8 +139,17 @@ def activity_coefficients(
     setschenow: float | Mapping[str, float] | None = None,
     missing: str = "error",
     unsymmetrical: bool = True,
+    equilibrium: bool | None = None,
+    pH: Any = None,
+    species: Any = None,
 ) -> ActivityCoefficients:
     """Activity coefficients of every species in a solution (or batch) by a named model.
+
+    Where the solution's species react (ion pairs, complexes, acid–base: see
+    :func:`ionact.speciate`), the values are *stoichiometric*: γ = a(free) / m(total) for
+    each ion given, so that γ·m is the activity of the free ion an electrode reads and the
+    mean values compare with tabulated γ±; ``.free`` holds the free ions' own γ and
+    ``.speciation`` the equilibrium.
 
     Parameters
     ----------
@@ -161,6 +172,13 @@ def activity_coefficients(
         fallback model name (used instead; recorded).
     unsymmetrical : bool
         Pitzer only: include the E-θ unsymmetrical mixing terms (default True).
+    equilibrium : bool, optional
+        Speciate first: True, False, or None (default) for "where the table has reactions
+        for these species".
+    pH : float or array_like, optional
+        Held during speciation (default: solved from the proton balance).
+    species : iterable of Complex, optional
+        Extra or overriding species for the equilibrium.
 
     Returns
     -------
@@ -195,17 +213,32 @@ def activity_coefficients(
     name, opts, fallback = choice_for(model, missing=missing, sizes=sizes, davies_coefficient=davies_coefficient,
                                       bdot=bdot, setschenow=setschenow, unsymmetrical=unsymmetrical)
     batch = batch_of(solution)
-    choice = resolve_model(batch, name, options=opts, fallback=fallback)
-    ev = evaluate(choice, batch)
-    for problem in ev.violations:
+    from .equilibrium import _ph, speciation_of, species_step
+
+    step = species_step(batch.ions, batch.m, batch.t, name, opts, fallback, equilibrium=equilibrium,
+                        ph=_ph(pH, solution.shape), species=species)
+    choice = step.choice
+    for problem in step.violations:
         warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))
-    notes = list(choice.lacking and [choice.reason] or []) + list(ev.notes)
+    notes = list(choice.lacking and [choice.reason] or []) + list(step.notes)
     shape = solution.shape
     gam = {}
     for k, n in enumerate(batch.names):
-        g = np.exp(LN10 * ev.log10_gamma[k]).reshape(shape)
+        g = np.exp(LN10 * step.log10_gamma[k]).reshape(shape)
         gam[n] = float(g) if g.ndim == 0 else g
-    return ActivityCoefficients(gam, choice, notes, solution.ionic_strength, ev.violations)
+    out = ActivityCoefficients(gam, choice, notes, solution.ionic_strength, step.violations)
+    out.speciation = speciation_of(step, shape, batch.t)
+    if out.speciation is not None:
+        sp = out.speciation
+        out.free = {n: _plain(sp.gamma[sp.species.index(n)]) for n in batch.names}
+        out.notes = out.notes + ("stoichiometric γ = a(free)/m(total): ions pair or complex here (see "
+                                 ".speciation)",)
+    return out
+
+
+def _plain(a: Any) -> float | np.ndarray:
+    arr = np.asarray(a)
+    return float(arr) if arr.ndim == 0 else arr
 
 
 @dataclass(frozen=True)
@@ -363,7 +396,7 @@ def compare_models(solution: Solution, models=None, **options) -> ModelCompariso
     >>> sorted(c.skipped) == [] and 0 < c.spread["Na+"] < 0.05
     True
     """
-    names = list(models) if models is not None else list(MODELS)
+    names = list(models) if models is not None else [m for m in MODELS if m != "ideal"]
     gammas, in_range, skipped = {}, {}, {}
     for name in names:
         info = get_model(name)

@@ -19,14 +19,16 @@ from __future__ import annotations
 import math
 import warnings
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
 from ._frozen import Record
 from .constants import LN10
+from .equilibrium import Step, species_step
 from .errors import InputError, ValidityRangeWarning, warn_range
 from .models.registry import Batch
-from .models.resolver import ModelChoice, choice_for, evaluate, log10_gamma, resolve_model
+from .models.resolver import ModelChoice, choice_for
 from .solution import Solution
 from .species import Ion, Salt, resolve_ion
 from .units import MOLAL, Amount, convert_amount, parse_amount
@@ -70,9 +72,13 @@ class _Problem:
     k: int  # analyte index
     t: np.ndarray  # (N,)
     shape: tuple[int, ...]
+    equilibrium: bool | None = None
+    ph: np.ndarray | None = None  # (N,) held pH, or None
+    species: tuple[Any, ...] | None = None
 
 
-def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, temperature) -> _Problem:
+def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, temperature,
+             equilibrium: bool | None = None, pH: Any = None, species: Any = None) -> _Problem:
     if matrix is not None:
         if not isinstance(matrix, Solution):
             raise InputError(f"matrix must be a Solution or None, got {type(matrix).__name__}")
@@ -106,7 +112,11 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
     if counter is not None:
         stoich[names.index(counter.name)] += abs(ion.charge) / abs(counter.charge)
     z = np.array([i.charge for i in ions], dtype=float)
-    return _Problem(tuple(names), tuple(ions), z, base, stoich, k, np.asarray(t, dtype=float).reshape(size), shape)
+    from .equilibrium import _ph
+
+    ph = _ph(pH, shape)
+    return _Problem(tuple(names), tuple(ions), z, base, stoich, k, np.asarray(t, dtype=float).reshape(size), shape,
+                    equilibrium, ph, None if species is None else tuple(species))
 
 
 def _batch(p: _Problem, m_analyte: np.ndarray, rows: np.ndarray | None = None) -> Batch:
@@ -116,12 +126,24 @@ def _batch(p: _Problem, m_analyte: np.ndarray, rows: np.ndarray | None = None) -
     return Batch.of(p.ions, m, t)
 
 
+def _step(p: _Problem, choice: ModelChoice | None, m_analyte: np.ndarray, rows=None, *, model: str = "auto",
+          opts: Any = None, fallback: str | None = None, checks: bool = False) -> Step:
+    """Steps 2–3 of the path (speciation where it applies, then the model) for the problem's batch."""
+    b = _batch(p, m_analyte, rows)
+    ph = None if p.ph is None else (p.ph if rows is None else p.ph[rows])
+    if choice is not None:
+        model, opts, fallback = choice.requested, choice.options, choice.fallback
+    return species_step(p.ions, b.m, b.t, model, opts, fallback, equilibrium=p.equilibrium, ph=ph,
+                        species=p.species, choice=choice, checks=checks)
+
+
 def _ln_gamma(p: _Problem, choice: ModelChoice, m_analyte: np.ndarray, rows=None) -> np.ndarray:
-    return log10_gamma(choice, _batch(p, m_analyte, rows))[p.k] * LN10
+    """ln of the analyte's stoichiometric γ: a(free analyte) / m(total analyte)."""
+    return _step(p, choice, m_analyte, rows).log10_gamma[p.k] * LN10
 
 
 def _choose(p: _Problem, model: str, opts, fallback, m_guess: np.ndarray) -> ModelChoice:
-    return resolve_model(_batch(p, m_guess), model, options=opts, fallback=fallback)
+    return _step(p, None, m_guess, model=model, opts=opts, fallback=fallback).choice
 
 
 def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
@@ -188,8 +210,13 @@ class ActivityConversion(Record):
     activity : float or ndarray
         Molal-scale activity a = γ m.
     gamma : float or ndarray
+        Stoichiometric: a(free analyte) / m(total analyte); the free ion's own γ when nothing binds it.
     ionic_strength : float or ndarray
-        Of the final solution (matrix + analyte + counter-ion), mol/kg.
+        Of the final solution (matrix + analyte + counter-ion, species after equilibrium), mol/kg.
+    free_fraction : float or ndarray
+        The share of the total analyte that is free (1 when nothing binds it).
+    pH : float or ndarray
+        Of the final solution when it was speciated (NaN otherwise).
     model, reason : str
     solution : Solution
         The final solution, for further conversions (molar units need its density model).
@@ -206,6 +233,8 @@ class ActivityConversion(Record):
     solution: Solution
     choice: ModelChoice | None = None
     notes: tuple[str, ...] = ()
+    free_fraction: float | np.ndarray = 1.0
+    pH: float | np.ndarray = float("nan")
 
     def concentration(self, unit: str = "mol/kg"):
         """The analyte concentration in ``unit`` (mol/kg, mmol/kg, mol/L, mmol/L, mg/L, µg/L,
@@ -221,19 +250,30 @@ def _out(x, shape):
 
 def _final(ion, counter, p, m_an, choice: ModelChoice, density=None) -> ActivityConversion:
     batch = _batch(p, m_an)
-    ev = evaluate(choice, batch)
-    for problem in ev.violations:
+    step = _step(p, choice, m_an, checks=True)
+    for problem in step.violations:
         warn_range(str(problem))
-    gamma = np.exp(LN10 * ev.log10_gamma[p.k])
+    gamma = np.exp(LN10 * step.log10_gamma[p.k])
+    free = np.ones(batch.m.shape[1])
+    ionic = batch.ionic
+    ph = np.full(batch.m.shape[1], np.nan)
+    if step.state is not None and step.network is not None:
+        i = step.network.names.index(ion.name)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            free = np.where(step.state.totals[i] > 0, step.state.molality[i] / step.state.totals[i], 1.0)
+        ionic = step.state.ionic
+        ph = -(step.state.log10_gamma[step.network.h] + np.log10(step.state.molality[step.network.h]))
     sol = Solution.from_arrays(p.ions, batch.m.reshape(len(p.names), *p.shape), p.t.reshape(p.shape),
                                density=density)
     return ActivityConversion(ion.name, counter.name if counter else None, _out(m_an, p.shape),
-                              _out(gamma * m_an, p.shape), _out(gamma, p.shape), _out(batch.ionic, p.shape),
-                              choice.name, choice.reason, sol, choice, tuple(ev.notes))
+                              _out(gamma * m_an, p.shape), _out(gamma, p.shape), _out(ionic, p.shape),
+                              choice.name, choice.reason, sol, choice, tuple(step.notes), _out(free, p.shape),
+                              _out(ph, p.shape))
 
 
 def concentration_from_activity(analyte, activity, *, matrix: Solution | None = None, counter_ion=None,
                                 model: str = "auto", temperature=None, missing: str = "error",
+                                equilibrium: bool | None = None, pH: Any = None, species: Any = None,
                                 **model_options) -> ActivityConversion:
     """The analyte concentration that gives a measured activity in a matrix.
 
@@ -252,8 +292,15 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
         Activity model name, or "auto" (chosen for the converged ionic strength).
     temperature : float, optional
         °C; the matrix's own temperature when a matrix is given, else 25 °C.
+    equilibrium : bool, optional
+        Speciate the final solution (True, False, or None: where its ions associate); the
+        activity is then that of the *free* analyte, and the result gives its free fraction.
+    pH : float, optional
+        Held during speciation (default: solved from the proton balance).
+    species : iterable of Complex, optional
+        Extra species (complexing agents) for the equilibrium.
     **model_options
-        Passed to the model (sizes, davies_coefficient, missing="zero", …).
+        Passed to the model (sizes, davies_coefficient, …).
 
     Returns
     -------
@@ -288,7 +335,7 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
         raise InputError(f"temperature {temperature!r} differs from the matrix's {matrix.temperature!r}; "
                          "set the temperature on the matrix")
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
-    p = _problem(an, counter, matrix, a.shape, temperature)
+    p = _problem(an, counter, matrix, a.shape, temperature, equilibrium, pH, species)
     ln_a = np.log(np.broadcast_to(a, p.shape).reshape(-1))
     choice = _choose(p, name, opts, fallback, np.exp(ln_a))
     x, ok = _solve(p, choice, ln_a)
@@ -310,6 +357,7 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
 
 def activity_from_concentration(analyte, amount, *, matrix: Solution | None = None, counter_ion=None,
                                 model: str = "auto", temperature=None, density=None, missing: str = "error",
+                                equilibrium: bool | None = None, pH: Any = None, species: Any = None,
                                 **model_options) -> ActivityConversion:
     """The activity an electrode will see for a given analyte concentration in a matrix.
 
@@ -347,7 +395,7 @@ def activity_from_concentration(analyte, amount, *, matrix: Solution | None = No
         sol = Solution.from_parts(plist, t, charge_tolerance=0.999, density=density)
         value = np.asarray(sol.molality(an.name))
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
-    p = _problem(an, counter, matrix, value.shape, temperature)
+    p = _problem(an, counter, matrix, value.shape, temperature, equilibrium, pH, species)
     m_an = np.broadcast_to(value, p.shape).reshape(-1).astype(float)
     return _final(an, counter, p, m_an, _choose(p, name, opts, fallback, m_an))
 
@@ -404,7 +452,7 @@ def standard_for_activity(salt: str, analyte: str, activity, *, matrix: Solution
     --------
     >>> r = standard_for_activity("NaF", "F-", 1e-3, model="davies")
     >>> round(r.salt_molality * 1e3, 4), round(r.grams_per_kg_water, 4)
-    (1.037, 0.0435)
+    (1.0377, 0.0436)
     """
     s = Salt.parse(salt)
     an = resolve_ion(analyte)

@@ -22,6 +22,7 @@ __all__ = [
     "UnknownSpeciesError",
     "MissingParameterError",
     "InfeasibleDesignError",
+    "ConvergenceError",
     "ValidityRangeError",
     "ValidityRangeWarning",
     "UnitAssumptionWarning",
@@ -71,6 +72,10 @@ class MissingParameterError(IonactError, KeyError):
 
     def __str__(self) -> str:
         return str(self.args[0]) if self.args else ""
+
+
+class ConvergenceError(IonactError, RuntimeError):
+    """An iterative solution (chemical equilibrium) did not converge; the message names the balance."""
 
 
 class InfeasibleDesignError(IonactError, ValueError):

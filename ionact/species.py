@@ -59,6 +59,41 @@ def _alias_map() -> dict[tuple[str, int], str]:
     return out
 
 
+@lru_cache(maxsize=1)
+def _complex_ions() -> dict[str, Ion]:
+    """Ions for the species of the complexes table that the ion table lacks (name -> Ion)."""
+    from .tables import complex_table
+
+    out: dict[str, Ion] = {}
+    for name, rec in complex_table().items():
+        if name in ion_table():
+            continue
+        aq = name.endswith("(aq)")
+        bare = name[:-4] if aq else name
+        m = re.match(r"^(?P<f>.+?)(?:\^\d+)?[+-]$", bare)
+        formula = m["f"] if m and rec.charge != 0 else bare
+        out[name] = Ion(formula=formula, charge=rec.charge, molar_mass=_formula_mass(formula), size=rec.size,
+                        tabulated=True, aq=aq)
+    return out
+
+
+def _exact(s: str) -> Ion | None:
+    """A tabulated species by its exact canonical name (no reading of the notation needed)."""
+    if s in ion_table():
+        return _from_record(ion_table()[s])
+    complexes = _complex_ions()
+    if s in complexes:
+        return complexes[s]
+    if f"{s}(aq)" in complexes:
+        return complexes[f"{s}(aq)"]
+    return None
+
+
+def _from_record(rec: IonRecord) -> Ion:
+    return Ion(formula=rec.formula, charge=rec.charge, molar_mass=_formula_mass(rec.formula), size=rec.size,
+               tj_a=rec.tj_a, tj_b=rec.tj_b, volume=rec.volume, tabulated=True, masson=rec.masson)
+
+
 def _lookup(formula: str, charge: int) -> IonRecord | None:
     formula = _alias_map().get((formula, charge), formula)
     return ion_table().get(canonical_name(formula, charge))
@@ -138,6 +173,7 @@ class Ion:
     volume: float | None = None
     tabulated: bool = False
     masson: float | None = None
+    aq: bool = False  # a neutral dissolved complex written "CaSO4(aq)" to tell it from the solid or salt
 
     def __post_init__(self) -> None:
         if isinstance(self.charge, np.integer):
@@ -160,8 +196,8 @@ class Ion:
 
     @property
     def name(self) -> str:
-        """Canonical notation: ``"Ca^2+"``, ``"Na+"``, ``"SO4^2-"``, ``"NH3"``."""
-        return canonical_name(self.formula, self.charge)
+        """Canonical notation: ``"Ca^2+"``, ``"Na+"``, ``"SO4^2-"``, ``"NH3"``, ``"CaSO4(aq)"``."""
+        return canonical_name(self.formula, self.charge) + ("(aq)" if self.aq and self.charge == 0 else "")
 
     def __str__(self) -> str:
         return self.name
@@ -169,7 +205,7 @@ class Ion:
     def to_dict(self) -> dict[str, object]:
         """The species as plain data (what a design file stores for species outside the tables)."""
         return {"formula": self.formula, "charge": self.charge, "molar_mass": self.molar_mass, "size": self.size,
-                "volume": self.volume, "masson": self.masson}
+                "volume": self.volume, "masson": self.masson, "aq": self.aq}
 
     @classmethod
     def from_dict(cls, d: Mapping[str, object]) -> Ion:
@@ -188,9 +224,10 @@ class Ion:
             raise InputError(f"an ion record lacks {exc}") from None
         if not isinstance(formula, str) or isinstance(charge, bool) or not isinstance(charge, int):
             raise InputError(f"ion record {dict(d)!r} needs a formula (text) and an integer charge")
-        name = canonical_name(formula, charge)
-        if name in ion_table():
-            return Ion.parse(name)
+        name = canonical_name(formula, charge) + ("(aq)" if d.get("aq") and charge == 0 else "")
+        known = _exact(name)
+        if known is not None:
+            return known
 
         def opt(key: str) -> float | None:
             v = d.get(key)
@@ -202,7 +239,7 @@ class Ion:
 
         mass = opt("molar_mass")
         return cls(formula=formula, charge=charge, molar_mass=mass if mass is not None else _formula_mass(formula),
-                   size=opt("size"), volume=opt("volume"), masson=opt("masson"))
+                   size=opt("size"), volume=opt("volume"), masson=opt("masson"), aq=bool(d.get("aq", False)))
 
     @property
     def pretty(self) -> str:
@@ -239,6 +276,9 @@ class Ion:
 @lru_cache(maxsize=4096)
 def _parse_ion_cached(text: str) -> Ion:
     s = text.strip().translate(_SUPER).replace(" ", "")
+    exact = _exact(s)
+    if exact is not None:
+        return exact
     s = re.sub(r"\(aq\)$", "", s)
     if not s:
         raise InputError("an ion notation is empty")

@@ -26,6 +26,8 @@ __all__ = [
     "canonical_name",
     "acid_table",
     "ksp_table",
+    "ComplexRecord",
+    "complex_table",
     "ReagentRecord",
     "reagent_table",
     "charge_of_name",
@@ -187,6 +189,8 @@ _RE_CHARGE = re.compile(r"(?:\^(\d+))?([+-])$")
 
 def charge_of_name(name: str) -> int:
     """The charge written in a canonical name (``"SO4^2-"`` → −2, ``"NH3"`` → 0)."""
+    if name.endswith("(aq)"):
+        return 0
     m = _RE_CHARGE.search(name)
     if m is None:
         return 0
@@ -221,6 +225,61 @@ def pitzer_mixing_table() -> tuple[dict[frozenset[str], float], dict[tuple[froze
         else:
             raise ValueError(f"pitzer_mixing.csv line {k}: kind {r['kind']!r} is not theta or psi")
     return theta, psi
+
+
+@dataclass(frozen=True, slots=True)
+class ComplexRecord:
+    """One row of ``complexes.csv``: a species formed stepwise from a base species and components.
+
+    ``log_k`` and ``delta_h`` (kJ/mol, None when unknown) are those of the step
+    base + adds → species at 25 °C and I = 0; overall constants follow by summing the steps.
+    """
+
+    species: str
+    charge: int
+    base: str  # "" when formed from the components alone
+    adds: tuple[tuple[str, int], ...]
+    log_k: float
+    delta_h: float | None
+    kind: str  # "water", "acid", "pair", "complex", "hydrolysis"
+    size: float | None
+    source: tuple[str, ...]
+
+
+def _adds(text: str, where: str) -> tuple[tuple[str, int], ...]:
+    out = []
+    for part in text.split(";"):
+        if not part.strip():
+            continue
+        name, _, n = part.rpartition(":")
+        out.append((name.strip(), int(n)))
+    if not out:
+        raise ValueError(f"complexes.csv {where}: no components added")
+    return tuple(out)
+
+
+@lru_cache(maxsize=1)
+def complex_table() -> dict[str, ComplexRecord]:
+    """Aqueous species formed from components (complexes, ion pairs, acids), keyed by name.
+
+    Each row's charge must equal its base's charge plus the charges it adds; a row whose
+    base is not defined above it is an error at load time.
+    """
+    out: dict[str, ComplexRecord] = {}
+    for k, r in enumerate(_rows("complexes.csv"), start=2):
+        adds = _adds(r["adds"], f"line {k}")
+        charge = int(r["charge"])
+        base = r["base"].strip()
+        base_charge = 0
+        if base:
+            base_charge = out[base].charge if base in out else charge_of_name(base)
+        expect = base_charge + sum(charge_of_name(a) * n for a, n in adds)
+        if expect != charge:
+            raise ValueError(f"complexes.csv line {k}: {r['species']} has charge {charge}, its parts {expect}")
+        out[r["species"]] = ComplexRecord(r["species"], charge, base, adds, float(r["log_k"]),
+                                          _opt(r["delta_h_kj"]), r["kind"], _opt(r["size_angstrom"]),
+                                          _src(r["source"]))
+    return out
 
 
 @dataclass(frozen=True, slots=True)

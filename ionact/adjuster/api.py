@@ -231,6 +231,8 @@ def design_adjuster(
     density: str | None = None,
     levels: int = 7,
     name: str = "",
+    equilibrium: bool | None = None,
+    complexes: Sequence[Any] | None = None,
     **model_options: Any,
 ) -> AdjusterDesign:
     """Design (or evaluate) an ionic strength adjuster for an ion-selective electrode method.
@@ -290,6 +292,12 @@ def design_adjuster(
         Analyte levels (and default standards) across the range.
     name : str
         A name for the report.
+    equilibrium : bool, optional
+        Speciate the treated solutions (ion pairs, complexes, acid–base) so that the error is
+        on the free analyte the electrode reads: None (default) where the ions associate, or
+        always when the stock holds a buffer; True or False to force it.
+    complexes : sequence of Complex, optional
+        Species to add to the equilibrium (a complexing agent and its protonation, say).
     **model_options
         Passed to the model (sizes, davies_coefficient, …).
 
@@ -337,7 +345,11 @@ def design_adjuster(
     std_levels = _standards(standards, an, an_levels)
     sset = sample_set(pop, t, an)
     provisional = ModelChoice(requested if requested != "auto" else "davies", "davies", "provisional", opts)
-    system = System.build(an, counter, comps, sset, an_levels, std_levels, t, density, provisional)
+    if equilibrium is not None and not isinstance(equilibrium, bool):
+        raise InputError(f"equilibrium {equilibrium!r} must be True, False or None")
+    eq = True if (equilibrium is None and buffer is not None) else equilibrium
+    system = System.build(an, counter, comps, sset, an_levels, std_levels, t, density, provisional, eq,
+                          tuple(complexes) if complexes else None)
     base = np.array([c.amount for c in comps])
     max_scale = solubility_ceiling(system.components, base, t, density, t_low, margin) if solve == "stock" else math.inf
     slope = log_slope(an.charge, t)
@@ -391,4 +403,5 @@ def _assemble(result: SearchResult, job: Job, an: Ion, counter: Ion, pop: Sample
         cautions=_cautions(system), stock_ions=stock_ions, species=species, background=pop.background,
         density=system.density, buffer=buffer_info, samples=pop.to_dict(),
         scan=_scan_for_figure(system, job, result, job.slope), gamma_profile=_sample_profile(system, ev, job.slope),
+        equilibrium=system.equilibrium, complexes=tuple(c.to_dict() for c in system.species or ()),
     )

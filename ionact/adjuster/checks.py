@@ -23,9 +23,10 @@ import numpy as np
 from ..constants import PARAMETER_WINDOW
 from ..density import water_per_litre
 from ..electrode import nernst_slope
+from ..equilibrium import Step, species_step
 from ..errors import InputError, MissingParameterError
 from ..models.registry import Batch
-from ..models.resolver import ModelChoice, evaluate, resolve_model
+from ..models.resolver import ModelChoice
 from ..references import cite
 from ..species import Ion, Salt, resolve_ion
 from ..tables import acid_table, ksp_table
@@ -33,7 +34,7 @@ from .inputs import Electrode, SamplePopulation
 from .solve import BufferPlan, stock_saturation
 from .system import Evaluated, System
 
-__all__ = ["Check", "STATUSES", "aux_log10_gamma", "check_solubility", "check_model_range", "check_budget",
+__all__ = ["Check", "STATUSES", "aux_step", "check_solubility", "check_model_range", "check_budget",
            "check_linear_range", "check_interference", "check_precipitation", "check_buffer", "check_protonation",
            "INTERFERENCE_WARNING_SHARE", "PH_DRIFT_LIMIT", "MEASURED_FORM_LIMIT", "PKW"]
 
@@ -94,12 +95,13 @@ class Check:
                    None if limit is None else float(limit), str(d.get("unit", "")), str(d.get("detail", "")))
 
 
-def aux_log10_gamma(system: System, batch: Batch, extra: Mapping[str, tuple[Ion, np.ndarray]]) -> tuple[
-        np.ndarray, Batch, str]:
-    """log10 γ of the treated solutions with extra ions added (molalities (N,) each).
+def aux_step(system: System, batch: Batch, extra: Mapping[str, tuple[Ion, np.ndarray]]) -> tuple[
+        Step, Batch, str]:
+    """The path (species, then γ) for the treated solutions with extra ions added (molalities (N,) each).
 
-    Returns the log10 γ (n + n_extra, N), the augmented batch, and a note when another
-    model than the design's had to be used for the extra ions.
+    Returns the step (stoichiometric log10 γ of every input, and the equilibrium where the
+    ions react), the augmented batch of totals, and a note naming the model used — another
+    than the design's when it lacks parameters for the extra ions.
     """
     ions = list(batch.ions)
     m = [batch.m]
@@ -110,15 +112,16 @@ def aux_log10_gamma(system: System, batch: Batch, extra: Mapping[str, tuple[Ion,
         m.append(np.broadcast_to(mm, batch.m.shape[1:])[None, :])
     aug = Batch.of(tuple(ions), np.concatenate(m, axis=0), batch.t)
     choice: ModelChoice = system.choice
+    kw = dict(equilibrium=system.equilibrium, species=system.species, checks=False)
     try:
-        lg = choice.info.kernel(aug, choice.options)[0]
+        step = species_step(aug.ions, aug.m, aug.t, choice.requested, choice.options, choice.fallback,
+                            choice=choice, **kw)  # type: ignore[arg-type]
         note = f"activities by {choice.name}"
     except MissingParameterError:
         lacking = "; ".join(choice.info.needs(aug.ions, choice.options))
-        alt = resolve_model(aug, "auto", options=choice.options)
-        lg = evaluate(alt, aug).log10_gamma
-        note = f"activities by {alt.name} ({choice.name} lacks {lacking})"
-    return lg, aug, note
+        step = species_step(aug.ions, aug.m, aug.t, "auto", choice.options, None, **kw)  # type: ignore[arg-type]
+        note = f"activities by {step.choice.name} ({choice.name} lacks {lacking})"
+    return step, aug, note
 
 
 def check_solubility(system: System, amounts: np.ndarray, t_low: float, margin: float) -> list[Check]:
@@ -195,8 +198,8 @@ def check_interference(system: System, ev: Evaluated, analyte: Ion, electrode: E
     """
     batch = ev.batch
     declared = _declared_molalities(system, batch, pop, ratio)
-    lg, aug, note = aux_log10_gamma(system, batch, declared)
-    a = np.power(10.0, lg) * aug.m
+    step, aug, note = aux_step(system, batch, declared)
+    a = np.power(10.0, step.log10_gamma) * aug.m  # free activities (stoichiometric γ × totals)
     a_an = a[aug.names.index(analyte.name)]
     isa = {system.names[i] for i in range(len(system.ions)) if np.any(system.cmat[i] > 0)}
     sign = np.sign(analyte.charge)
@@ -255,31 +258,40 @@ def check_interference(system: System, ev: Evaluated, analyte: Ion, electrode: E
     return out
 
 
+def _log_activities(step: Step, aug: Batch) -> tuple[tuple[str, ...], np.ndarray]:
+    """log10 activities of every free species: from the equilibrium where there is one, else γ × totals."""
+    if step.state is not None and step.network is not None:
+        with np.errstate(divide="ignore"):
+            return step.network.names, step.state.log10_gamma + np.log10(step.state.molality)
+    with np.errstate(divide="ignore"):
+        return aug.names, step.log10_gamma + np.log10(aug.m)
+
+
 def check_precipitation(system: System, ev: Evaluated, analyte: Ion, pop: SamplePopulation, ratio: float
                         ) -> list[Check]:
-    """Saturation index of every tabulated solid whose ions meet in the treated samples and standards."""
+    """Saturation index of every tabulated solid whose ions meet in the treated samples and standards,
+    from the free ions' activities (after ion pairing and complexation where they apply)."""
     batch = ev.batch
     declared = _declared_molalities(system, batch, pop, ratio)
-    lg, aug, note = aux_log10_gamma(system, batch, declared)
+    step, aug, note = aux_step(system, batch, declared)
+    names, log_a = _log_activities(step, aug)
     out = []
     for salt, (log_ksp, src) in ksp_table().items():
         s = Salt.parse(salt)
-        if not all(i in aug.names for i, _ in s.ions):
+        if not all(i in names for i, _ in s.ions):
             continue
-        rows = [aug.names.index(i) for i, _ in s.ions]
-        m = aug.m[rows]
-        present = np.all(m > 0, axis=0)
+        rows = [names.index(i) for i, _ in s.ions]
+        present = np.all(np.isfinite(log_a[rows]), axis=0)
         if not np.any(present):
             continue
-        with np.errstate(divide="ignore"):
-            log_iap = sum(nu * (np.log10(aug.m[r]) + lg[r]) for (_, nu), r in zip(s.ions, rows, strict=True))
+        log_iap = sum(nu * log_a[r] for (_, nu), r in zip(s.ions, rows, strict=True))
         log_iap = np.where(present, log_iap, -np.inf)
         col = int(np.argmax(log_iap))
         si = float(log_iap[col]) - log_ksp
         has_analyte = any(i == analyte.name for i, _ in s.ions)
         status = ("fail" if has_analyte else "warning") if si > 0 else "ok"
         detail = (f"saturation index in the treated solutions (log Ksp {log_ksp:g}, {cite(src[0]) if src else ''}); "
-                  f"{note}")
+                  f"{note}" + ("; free-ion activities after ion pairing" if step.state is not None else ""))
         if si > 0 and has_analyte:
             detail += f"; the analyte {analyte.name} itself would precipitate"
         out.append(Check(f"precipitation of {salt}", status, si, 0.0, "", detail))
@@ -292,15 +304,16 @@ def check_buffer(system: System, ev: Evaluated, plan: BufferPlan, amounts: np.nd
     b = ev.batch
     lg = ev.result.log10_gamma
     ia, ib = system.index(plan.acid_species), system.index(plan.base_species)
-    ph = plan.pka + np.log10(np.power(10.0, lg[ib]) * b.m[ib] / (np.power(10.0, lg[ia]) * b.m[ia]))
+    ph = ev.ph if ev.ph is not None else (
+        plan.pka + np.log10(np.power(10.0, lg[ib]) * b.m[ib] / (np.power(10.0, lg[ia]) * b.m[ia])))
     ca_stock, cb_stock = float(amounts[plan.acid_index]), float(amounts[plan.base_index])
     ca_f, cb_f = ca_stock * ratio / (1 + ratio), cb_stock * ratio / (1 + ratio)
     cap = math.log(10.0) * ca_f * cb_f / (ca_f + cb_f)
     out = []
     drift = None
     if acidity is not None:
-        ga = float(np.power(10.0, np.median(lg[ia])))
-        gb = float(np.power(10.0, np.median(lg[ib])))
+        ga = float(np.power(10.0, np.median(_free_lg(ev, plan.acid_species, lg[ia]))))
+        gb = float(np.power(10.0, np.median(_free_lg(ev, plan.base_species, lg[ib]))))
         shifts = []
         for d in acidity:
             delta = d / (1 + ratio)
@@ -331,8 +344,24 @@ def check_buffer(system: System, ev: Evaluated, plan: BufferPlan, amounts: np.nd
     return out, info
 
 
+def _free_lg(ev: Evaluated, name: str, fallback: np.ndarray) -> np.ndarray:
+    """log10 γ of a free species in every treated solution (the equilibrium's, where there is one)."""
+    st, net = ev.result.state, ev.result.network
+    if st is None or net is None or name not in net.names:
+        return fallback
+    return np.asarray(st.log10_gamma[net.names.index(name)])
+
+
 def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | None) -> tuple[list[Check], str]:
-    """The analyte's fraction in the form the electrode measures, at the fixed pH."""
+    """The analyte's free share in the treated solutions: protonation, ion pairs and complexes.
+
+    With an equilibrium (a buffer, or ions that associate) the free fraction comes from the
+    speciation of every treated sample and standard; otherwise from the acid–base pair at the
+    stated pH (activity-corrected Henderson–Hasselbalch).
+    """
+    free = ev.free_fraction(analyte.name)
+    if free is not None:
+        return [_free_fraction_check(system, ev, analyte, free)], ""
     pair = next(((a, b, pka) for (a, b), (pka, _) in acid_table().items() if analyte.name in (a, b)), None)
     if pair is None:
         return [], ""
@@ -343,7 +372,8 @@ def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | N
                       "fixes no pH: add a buffer or state the samples' pH")], ""
     partner = resolve_ion(acid if analyte.name == base else base)
     batch = ev.batch
-    lg, aug, note = aux_log10_gamma(system, batch, {partner.name: (partner, np.zeros(batch.m.shape[1]))})
+    step, aug, note = aux_step(system, batch, {partner.name: (partner, np.zeros(batch.m.shape[1]))})
+    lg = step.log10_gamma
     ga = float(np.median(lg[aug.names.index(acid)]))
     gb = float(np.median(lg[aug.names.index(base)]))
     log_b_over_a = ph - pka + ga - gb
@@ -358,3 +388,26 @@ def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | N
               + f"; {note}")
     return [Check(f"{analyte.name} in the measured form", status, 100.0 * frac, 100.0 * MEASURED_FORM_LIMIT, "%",
                   detail)], note
+
+
+def _free_fraction_check(system: System, ev: Evaluated, analyte: Ion, free: np.ndarray) -> Check:
+    n_s = ev.ls.size
+    samples, standards = free[:n_s], free[n_s:]
+    k = int(np.argmin(samples))
+    step = ev.result
+    assert step.state is not None and step.network is not None
+    net, st = step.network, step.state
+    j = net.names.index(analyte.name)
+    holders = [(float(net.nu[i, j] * st.molality[i, k] / st.totals[j, k]), net.names[i])
+               for i in np.flatnonzero(net.nu[:, j] > 0) if i != j]
+    holders.sort(reverse=True)
+    bound = ", ".join(f"{name} {share:.1%}" for share, name in holders[:3] if share >= 1e-4)
+    worst = float(samples[k])
+    ref = float(np.median(standards))
+    status = "ok" if worst >= MEASURED_FORM_LIMIT * ref else "warning"
+    detail = (f"free {analyte.name} in the worst treated sample, against {ref:.2%} in the standards"
+              + (f"; bound as {bound}" if bound else "")
+              + ("" if status == "ok" else "; the samples bind the analyte more than the standards do: a "
+                 "complexing agent or another pH would free it"))
+    return Check(f"free fraction of {analyte.name}", status, 100.0 * worst, 100.0 * MEASURED_FORM_LIMIT * ref, "%",
+                 detail)

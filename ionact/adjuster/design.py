@@ -148,6 +148,8 @@ class AdjusterDesign:
     density: str | None = None
     buffer: Mapping[str, Any] | None = None
     samples: Mapping[str, Any] = field(default_factory=dict)
+    equilibrium: bool | None = None
+    complexes: tuple[Mapping[str, Any], ...] = ()
     scan: Mapping[str, Any] = field(repr=False, default_factory=dict)
     gamma_profile: Mapping[str, Any] = field(repr=False, default_factory=dict)
 
@@ -225,6 +227,7 @@ class AdjusterDesign:
             "species": {k: dict(v) for k, v in self.species.items()}, "background": self.background,
             "density": self.density, "buffer": dict(self.buffer) if self.buffer else None,
             "samples": dict(self.samples), "scan": dict(self.scan), "gamma_profile": dict(self.gamma_profile),
+            "equilibrium": self.equilibrium, "complexes": [dict(c) for c in self.complexes],
         })
 
     @classmethod

@@ -19,7 +19,7 @@ import numpy as np
 from ..density import water_per_litre
 from ..errors import InfeasibleDesignError, ValidityRangeWarning
 from ..models.registry import MODELS, Batch
-from ..models.resolver import ModelChoice, resolve_model
+from ..models.resolver import ModelChoice
 from ..species import Ion
 from .inputs import StockComponent
 from .system import Evaluated, System
@@ -95,26 +95,36 @@ def points(system: System, job: Job, x: np.ndarray) -> tuple[np.ndarray, np.ndar
 def solve_buffer(system: System, plan: BufferPlan, amounts: np.ndarray, ratio: np.ndarray) -> np.ndarray:
     """The acid/base split of the buffer at each design point for the target pH.
 
-    Activity-corrected Henderson–Hasselbalch, pH = pKa + log10(γ_b m_b / (γ_a m_a)), with
-    γ from the design's model at the median treated composition, iterated to a fixed point.
+    The activity-corrected Henderson–Hasselbalch split, pH = pKa + log10(γ_b m_b / (γ_a m_a)),
+    is the start; the treated mixtures are then speciated and the split moved until their
+    equilibrium pH (the median over samples and standards) is the target.
     """
     out = np.array(amounts, dtype=float)
     ia, ib = system.index(plan.acid_species), system.index(plan.base_species)
     need = 10.0 ** (plan.pH - plan.pka)
-    for _ in range(8):
+    G = out.shape[1]
+    log_ratio = np.full(G, math.log10(need))
+    for k in range(30):
+        out = _split(out, plan, log_ratio)
         ev = system.evaluate(out, ratio)
-        lg = ev.result.log10_gamma
-        G = out.shape[1]
-        ga = _median_per_point(lg[ia], G, ev)
-        gb = _median_per_point(lg[ib], G, ev)
-        frac_b = need * 10.0 ** (ga - gb)
-        cb = plan.total * frac_b / (1.0 + frac_b)
-        new = np.array(out)
-        new[plan.acid_index] = plan.total - cb
-        new[plan.base_index] = cb
-        if np.allclose(new, out, rtol=1e-12, atol=0.0):
+        ph = ev.ph
+        if ph is None:  # no equilibrium: Henderson–Hasselbalch with the model's γ
+            lg = ev.result.log10_gamma
+            new = math.log10(need) + _median_per_point(lg[ia], G, ev) - _median_per_point(lg[ib], G, ev)
+        else:
+            new = log_ratio + (plan.pH - _median_per_point(ph, G, ev))
+        if np.all(np.abs(new - log_ratio) < 1e-10) and k > 0:
             break
-        out = new
+        log_ratio = new
+    return _split(out, plan, log_ratio)
+
+
+def _split(amounts: np.ndarray, plan: BufferPlan, log_ratio: np.ndarray) -> np.ndarray:
+    out = np.array(amounts, dtype=float)
+    frac_b = 10.0**log_ratio
+    cb = plan.total * frac_b / (1.0 + frac_b)
+    out[plan.acid_index] = plan.total - cb
+    out[plan.base_index] = cb
     return out
 
 
@@ -200,7 +210,7 @@ def _resolve_at(system: System, job: Job, x: float, model: str | None = None) ->
     ts, tstd = system.treated(amounts, ratio)
     n = ts.shape[0]
     batch = system.batch(np.concatenate([ts.reshape(n, -1), tstd.reshape(n, -1)], axis=1))
-    return resolve_model(batch, model or job.requested, options=system.choice.options, fallback=job.fallback)
+    return system.resolve(batch, model or job.requested, job.fallback)
 
 
 def _bounds(job: Job) -> tuple[float, float]:
@@ -261,7 +271,7 @@ def _root(system: System, job: Job, notes: list[str]) -> tuple[float, dict, Mode
     ok = np.flatnonzero((wg <= job.budget_mv) & valid)
     what = "stock scale" if job.solve == "stock" else "volume ratio"
     if ok.size == 0 and not np.all(valid) and job.requested != "auto":
-        wider = resolve_model(ev.batch, "auto", options=system.choice.options)
+        wider = system.resolve(ev.batch, "auto", None)
         if wider.name != system.choice.name and wider.info.max_ionic_strength > system.choice.info.max_ionic_strength:
             notes.append(f"model {system.choice.name} cannot cover a design that meets the budget: moved to "
                          f"{wider.name}")

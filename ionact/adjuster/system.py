@@ -17,10 +17,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..density import water_per_litre
+from ..equilibrium import Complex, Step, species_step
 from ..errors import InputError
 from ..estimates import ionic_strength_from_conductivity, ionic_strength_from_tds
 from ..models.registry import Batch
-from ..models.resolver import Evaluation, ModelChoice, evaluate
+from ..models.resolver import ModelChoice
 from ..solution import Solution
 from ..species import Ion, Salt, resolve_ion
 from ..units import MOLAR, parse_amount
@@ -113,8 +114,25 @@ class Evaluated:
     lstd: np.ndarray  # (G, L) in treated standards
     ionic_s: np.ndarray  # (G, J, K) mol/kg
     ionic_std: np.ndarray  # (G, L)
-    batch: Batch  # every treated solution, (n, G·J·K + G·L)
-    result: Evaluation
+    batch: Batch  # every treated solution, (n, G·J·K + G·L) — totals, mol/kg
+    result: Step  # the model and, where the ions react, the equilibrium of every treated solution
+
+    @property
+    def ph(self) -> np.ndarray | None:
+        """pH of every treated solution when they were speciated (None otherwise)."""
+        st, net = self.result.state, self.result.network
+        if st is None or net is None:
+            return None
+        return np.asarray(-(st.log10_gamma[net.h] + np.log10(np.maximum(st.molality[net.h], 1e-300))))
+
+    def free_fraction(self, name: str) -> np.ndarray | None:
+        """Free share of a component's total in every treated solution (None without speciation)."""
+        st, net = self.result.state, self.result.network
+        if st is None or net is None or name not in net.names:
+            return None
+        i = net.names.index(name)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            return np.asarray(np.where(st.totals[i] > 0, st.molality[i] / st.totals[i], 1.0))
 
     @property
     def ionic_max(self) -> np.ndarray:
@@ -143,6 +161,8 @@ class System:
     temperature: float
     density: str | None
     choice: ModelChoice
+    equilibrium: bool | None = None
+    species: tuple[Complex, ...] | None = None
 
     @property
     def names(self) -> tuple[str, ...]:
@@ -157,7 +177,8 @@ class System:
     @classmethod
     def build(cls, analyte: Ion, counter: Ion, components: Sequence[StockComponent], samples: SampleSet,
               an_levels: np.ndarray, std_levels: np.ndarray, temperature: float, density: str | None,
-              choice: ModelChoice) -> System:
+              choice: ModelChoice, equilibrium: bool | None = None,
+              species: tuple[Complex, ...] | None = None) -> System:
         ions: list[Ion] = []
 
         def add(ion: Ion) -> None:
@@ -188,7 +209,7 @@ class System:
         stoich[names.index(counter.name)] += abs(analyte.charge) / abs(counter.charge)
         return cls(tuple(ions), tuple(components), cmat, sample_c, samples.labels,
                    np.asarray(sol.ionic_strength, dtype=float).reshape(J), an_levels, std_levels, stoich,
-                   names.index(analyte.name), temperature, density, choice)
+                   names.index(analyte.name), temperature, density, choice, equilibrium, species)
 
     def stock_ions(self, amounts: np.ndarray) -> np.ndarray:
         """Ion molarities of the stock (n_ions, G) for component amounts (n_components, G)."""
@@ -209,9 +230,20 @@ class System:
         return ts, tstd
 
     def batch(self, c_flat: np.ndarray) -> Batch:
-        """Steps 1–2 of the path for molar compositions (n, N): molalities, then species."""
+        """Step 1 of the path for molar compositions (n, N): molalities (totals)."""
         w = water_per_litre(self.ions, self.temperature, molar=c_flat, density=self.density)
         return Batch.of(self.ions, c_flat / w, self.temperature)
+
+    def resolve(self, batch: Batch, model: str, fallback: str | None) -> ModelChoice:
+        """The model for these treated solutions, resolved on their species (after equilibrium)."""
+        return species_step(self.ions, batch.m, batch.t, model, self.choice.options, fallback,
+                            equilibrium=self.equilibrium, species=self.species, checks=False).choice
+
+    def step(self, batch: Batch, checks: bool = True) -> Step:
+        """Steps 2–3: species where the ions react, then log10 γ by the design's model."""
+        c = self.choice
+        return species_step(self.ions, batch.m, batch.t, c.requested, c.options, c.fallback,
+                            equilibrium=self.equilibrium, species=self.species, choice=c, checks=checks)
 
     def evaluate(self, amounts: np.ndarray, ratio: np.ndarray) -> Evaluated:
         """Evaluate G design points: amounts (n_components, G), ratio (G,)."""
@@ -222,15 +254,16 @@ class System:
         L = tstd.shape[2]
         flat = np.concatenate([ts.reshape(n, -1), tstd.reshape(n, -1)], axis=1)
         batch = self.batch(flat)
-        result = evaluate(self.choice, batch)
-        lga = result.log10_gamma[self.k]
+        result = self.step(batch)
+        lga = result.log10_gamma[self.k]  # log10 of a(free analyte) / m(total analyte): what the electrode sees
         ls = lga[: G * J * K].reshape(G, J, K)
         lstd = lga[G * J * K:].reshape(G, L)
         hi_s, lo_s = ls.reshape(G, -1).max(axis=1), ls.reshape(G, -1).min(axis=1)
         hi_t, lo_t = lstd.max(axis=1), lstd.min(axis=1)
         worst = np.maximum(hi_s - lo_t, hi_t - lo_s)
-        return Evaluated(worst, ls, lstd, batch.ionic[: G * J * K].reshape(G, J, K),
-                         batch.ionic[G * J * K:].reshape(G, L), batch, result)
+        ionic = result.state.ionic if result.state is not None else batch.ionic
+        return Evaluated(worst, ls, lstd, ionic[: G * J * K].reshape(G, J, K), ionic[G * J * K:].reshape(G, L),
+                         batch, result)
 
     def counter_of(self) -> str:
         """The counter-ion carried with the analyte (the other non-zero entry of stoich)."""

@@ -5,7 +5,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from ..errors import InputError, IonactError
+from ..errors import InputError, IonactError, UnknownSpeciesError
 from ..models.resolver import ModelChoice
 from ..species import Ion, resolve_ion
 from .checks import Check
@@ -36,7 +36,10 @@ def _ion(name: Any, what: str, species: Mapping[str, Ion]) -> Ion:
         raise InputError(f"design field {what} {name!r} must be an ion notation")
     if name in species:
         return species[name]
-    return resolve_ion(name)
+    try:
+        return resolve_ion(name)
+    except UnknownSpeciesError as exc:
+        raise InputError(f"design field {what}: {exc}", value=name, field=what) from None
 
 
 def design_from_dict(d: Mapping[str, Any]) -> AdjusterDesign:
@@ -111,4 +114,18 @@ def _build(d: Mapping[str, Any]) -> AdjusterDesign:
         buffer=_mapping(d["buffer"], "buffer") if d.get("buffer") is not None else None,
         samples=_mapping(d.get("samples") or {}, "samples"), scan=_mapping(d.get("scan") or {}, "scan"),
         gamma_profile=_mapping(d.get("gamma_profile") or {}, "gamma_profile"),
+        equilibrium=_equilibrium(d.get("equilibrium")),
+        complexes=tuple(_complex(c) for c in _list(d.get("complexes") or [], "complexes")),
     )
+
+
+def _equilibrium(v: Any) -> bool | None:
+    if v is not None and not isinstance(v, bool):
+        raise InputError(f"design field equilibrium {v!r} must be true, false or null", field="equilibrium")
+    return v
+
+
+def _complex(c: Any) -> dict[str, Any]:
+    from ..equilibrium import Complex
+
+    return Complex.from_dict(_mapping(c, "complexes[]")).to_dict()

@@ -312,6 +312,10 @@ def _k_bdot(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     return _neutral_lg(b, o, lg, notes), notes
 
 
+def _k_ideal(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
+    return np.zeros_like(b.m), ["ideal solution: every activity coefficient taken as 1 (no activity correction)"]
+
+
 def _k_bates(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     z2, sq, a = _common(b)
     notes: list[str] = []
@@ -437,6 +441,8 @@ MODELS: dict[str, ModelInfo] = {
                   "Truesdell & Jones 1974", _k_tj, _needs_tj),
         ModelInfo("b-dot", "B-dot (Helgeson)", dh.RANGES["b-dot"], 60, _DH_CONV, "Helgeson 1969", _k_bdot,
                   _needs_size, extra_violations=_v_bdot),
+        ModelInfo("ideal", "ideal solution (γ = 1)", math.inf, 0, "no activity correction", "—", _k_ideal,
+                  _needs_nothing, in_auto=False),
         ModelInfo("bates-guggenheim", "Bates–Guggenheim convention", dh.RANGES["bates-guggenheim"], 20,
                   "Bates–Guggenheim convention for single-ion activity (IUPAC 2002 pH recommendations)",
                   "Buck et al. 2002", _k_bates, _needs_nothing, in_auto=False),

@@ -25,9 +25,10 @@ import numpy as np
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
 from ..electrode import nernst_slope
+from ..equilibrium import Complex, species_step
 from ..errors import InputError
 from ..models.registry import Batch
-from ..models.resolver import ModelChoice, log10_gamma, resolve_model
+from ..models.resolver import ModelChoice, resolve_model
 from ..species import Ion, Salt, resolve_ion
 from ..units import MOLAR, parse_amount
 from .columns import DEFAULT_CHARGE_BALANCE_PERCENT, RowValues, column_specs, row_values
@@ -58,6 +59,8 @@ class Method:
     background: str = "NaCl"
     density: str | None = None
     selectivity: Mapping[str, float] | None = None
+    equilibrium: bool | None = None
+    complexes: tuple[Any, ...] | None = None
 
     @classmethod
     def from_design(cls, design: Any) -> Method:
@@ -77,7 +80,8 @@ class Method:
             volume_ratio=design.volume_ratio, standards=design.standards, choice=design.model,
             temperature=design.temperature, budget_mv=design.budget_mv, envelope=design.envelope,
             analyte_range=design.analyte_range, linear_range=design.linear_range, background=design.background,
-            density=design.density, selectivity=design.selectivity,
+            density=design.density, selectivity=design.selectivity, equilibrium=design.equilibrium,
+            complexes=tuple(Complex.from_dict(c) for c in design.complexes) or None,
         )
 
 
@@ -201,10 +205,12 @@ def _batch_model(method: Method, ions: tuple[Ion, ...], isa: np.ndarray) -> tupl
 
 
 def _lg(choice: ModelChoice, ions: tuple[Ion, ...], c: np.ndarray, method: Method) -> tuple[np.ndarray, np.ndarray]:
-    """Steps 1–3 of the evaluation path on molar compositions (n, N): log10 γ and I."""
+    """Steps 1–3 of the evaluation path on molar compositions (n, N): stoichiometric log10 γ and I."""
     w = water_per_litre(ions, method.temperature, molar=c, density=method.density)
     b = Batch.of(ions, c / w, method.temperature)
-    return log10_gamma(choice, b), b.ionic
+    step = species_step(ions, b.m, b.t, choice.requested, choice.options, choice.fallback, choice=choice,
+                        equilibrium=method.equilibrium, species=method.complexes, checks=False)
+    return step.log10_gamma, (step.state.ionic if step.state is not None else b.ionic)
 
 
 def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray
