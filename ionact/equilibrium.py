@@ -47,8 +47,10 @@ PAIR_KINDS = frozenset({"pair"})  # weak ion pairs: left out when the model (Pit
 MAX_ITERATIONS = 200
 TOLERANCE = 1e-10  # relative mass-balance residual
 _MAX_STEP = LN10  # at most one decade per Newton step
-_PCF_STEPS = 12  # positive-continued-fraction steps before Newton
-_NEAR = 0.05  # activity coefficients follow once every balance is within 5 %
+_PCF_STEPS = 4  # at most this many positive-continued-fraction steps, then Newton
+_BLOCK = 2048  # samples per block: a block's arrays fit in cache
+_SWITCH = 0.5  # a sample switches to Newton once every balance is within 50 %
+_NEAR = 0.5  # activity coefficients follow once every balance is within 50 %
 _NOTHING = 1e-100  # mol/kg: a component total at or below this is absent (no balance to close)
 _H = "H+"
 
@@ -158,6 +160,11 @@ class Network:
     @property
     def component_names(self) -> tuple[str, ...]:
         return tuple(c.name for c in self.components)
+
+    @property
+    def z2(self) -> np.ndarray:
+        """Squared charge of every species."""
+        return np.array([s.charge**2 for s in self.species], dtype=float)
 
     def log_k_at(self, t: np.ndarray) -> np.ndarray:
         """log10 β (n_species, N) at temperatures t (°C) by van 't Hoff (unknown enthalpies: 25 °C values)."""
@@ -334,72 +341,148 @@ def _log_m(net: Network, logk: np.ndarray, x: np.ndarray, lg: np.ndarray, log_ah
     return np.minimum(np.asarray(logk + net.nu @ la - lg), 30.0)  # nothing exceeds 10^30 mol/kg mid-iteration
 
 
+def _molalities(net: Network, logk: np.ndarray, x: np.ndarray, lg: np.ndarray, log_ah: np.ndarray | None,
+                alive: np.ndarray) -> np.ndarray:
+    """Molalities of every species (n_s, N), mol/kg; zero where ``alive`` is zero."""
+    return np.asarray(np.exp(LN10 * _log_m(net, logk, x, lg, log_ah)) * alive)
+
+
+def _alive(net: Network, absent: np.ndarray) -> np.ndarray:
+    """1.0 for every species that can exist, 0.0 for an absent component and every species holding one."""
+    n_c = len(net.components)
+    holds = (net.nu != 0).astype(float)  # (n_s, n_c)
+    holds[:n_c] = np.eye(n_c)
+    return np.asarray(holds @ absent.astype(float) == 0.0, dtype=float)
+
+
+class _Work:
+    """The columns still iterating, gathered once and compacted as samples converge."""
+
+    def __init__(self, cols: np.ndarray, **arrays: np.ndarray) -> None:
+        self.cols = cols
+        self.arrays = arrays
+
+    def __getitem__(self, key: str) -> np.ndarray:
+        return self.arrays[key]
+
+    def __setitem__(self, key: str, value: np.ndarray) -> None:
+        self.arrays[key] = value
+
+    def keep(self, mask: np.ndarray) -> None:
+        self.cols = self.cols[mask]
+        self.arrays = {k: v[..., mask] for k, v in self.arrays.items()}
+
+
 def equilibrate(net: Network, totals: np.ndarray, temperature: np.ndarray, choice: ModelChoice, *,
                 ph: np.ndarray | None = None, max_iterations: int = MAX_ITERATIONS,
                 start: np.ndarray | None = None) -> State:
-    """Solve the network for component totals (n_c, N) mol/kg; ``ph`` holds a_H where given."""
+    """Solve the network for component totals (n_c, N) mol/kg; ``ph`` holds a_H where given.
+
+    The batch is solved in blocks of :data:`_BLOCK` samples so that each block's arrays stay
+    in the processor's cache (the Jacobian stack is N × n_c² numbers); every block is
+    vectorised, and a block's result does not depend on the others.
+    """
+    N = totals.shape[1]
+    if N <= _BLOCK:
+        return _equilibrate_block(net, totals, temperature, choice, ph=ph, max_iterations=max_iterations,
+                                  start=start)
+    t = np.broadcast_to(np.asarray(temperature, dtype=float), (N,))
+    p = None if ph is None else np.broadcast_to(np.asarray(ph, dtype=float), (N,))
+    parts = [_equilibrate_block(net, totals[:, i:i + _BLOCK], t[i:i + _BLOCK], choice,
+                                ph=None if p is None else p[i:i + _BLOCK], max_iterations=max_iterations,
+                                start=None if start is None else start[:, i:i + _BLOCK])
+             for i in range(0, N, _BLOCK)]
+    return State(np.concatenate([s.molality for s in parts], axis=1),
+                 np.concatenate([s.log10_gamma for s in parts], axis=1),
+                 np.concatenate([s.ionic for s in parts]), totals,
+                 np.concatenate([s.converged for s in parts]),
+                 np.concatenate([s.residual for s in parts], axis=1),
+                 max(s.iterations for s in parts), choice, ())
+
+
+def _equilibrate_block(net: Network, totals: np.ndarray, temperature: np.ndarray, choice: ModelChoice, *,
+                       ph: np.ndarray | None, max_iterations: int, start: np.ndarray | None) -> State:
+    """Solve one block of samples (see :func:`equilibrate`).
+
+    Each sample takes positive-continued-fraction steps while far from its balances and
+    damped Newton steps on ln m once within :data:`_SWITCH`; the activity coefficients start
+    from the stoichiometric composition and follow the species once every balance is within
+    :data:`_NEAR`, extrapolated each iteration to the self-consistent ionic strength, and the
+    Newton Jacobian carries their dependence on I, so convergence stays quadratic. A sample
+    is converged when every balance closes to :data:`TOLERANCE` and its ionic strength no
+    longer moves; converged samples leave the working set, so the cost falls as the batch
+    converges.
+    """
     n_c = len(net.components)
     N = totals.shape[1]
-    t = np.broadcast_to(np.asarray(temperature, dtype=float), (N,))
+    t = np.array(np.broadcast_to(np.asarray(temperature, dtype=float), (N,)))
     logk = net.log_k_at(t)
-    log_ah = None if ph is None else -np.broadcast_to(np.asarray(ph, dtype=float), (N,))
+    log_ah = None if ph is None else -np.array(np.broadcast_to(np.asarray(ph, dtype=float), (N,)))
     unknown = np.ones(n_c, dtype=bool)
     if ph is not None:
         unknown[net.h] = False
     absent = (totals <= _NOTHING) & unknown[:, None]
     absent[net.h] = False
+    alive = _alive(net, absent)
     x = np.where(totals > _NOTHING, np.log(np.maximum(totals, 1e-300)), -700.0) if start is None else np.array(start)
     if start is None:
         x[net.h] = math.log(1e-7)
-    lg = np.zeros((len(net.species), N))
-    it = 0
+    lg = _start_gammas(net, totals, t, choice)
     converged = np.zeros(N, dtype=bool)
     res = np.full((n_c, N), np.inf)
-    ionic_prev = np.full(N, np.inf)
-    z2 = np.array([s.charge**2 for s in net.species], dtype=float)
+    z2 = net.z2
     cap = np.where(totals > 0, np.log(np.maximum(totals, 1e-300)), -700.0)
     cap[~unknown | (np.arange(n_c) == net.h)] = np.inf
-    near = np.zeros(N, dtype=bool)  # samples close enough to their balances for γ to be updated
-    active = np.arange(N)  # only samples still iterating are computed
+    open_ = (unknown[:, None] & ~absent).astype(float)  # balances that must close
+    extra = {} if log_ah is None else {"ah": log_ah}
+    w = _Work(np.arange(N), x=x.copy(), lg=lg.copy(), tot=totals, logk=logk, alive=alive, cap=cap, open=open_,
+              absent=absent, t=t, near=np.zeros(N, dtype=bool), ionic=np.full(N, np.inf),
+              slope=np.zeros((len(net.species), N)), **extra)
+    abs_nu_t = np.abs(net.nu.T)
+    it = 0
+    r = res
     for it in range(1, max_iterations + 1):
-        a = active
-        xa, lga, tota, absa = x[:, a], lg[:, a], totals[:, a], absent[:, a]
-        aha = None if log_ah is None else log_ah[a]
-        m = _species(net, logk[:, a], xa, lga, aha, absa)
+        m = _molalities(net, w["logk"], w["x"], w["lg"], w.arrays.get("ah"), w["alive"])
         ionic = 0.5 * z2 @ m
-        na = near[a]
-        if np.any(na):
-            lga[:, na] = _gammas(net, m[:, na], t[a][na], choice)
-            m = _species(net, logk[:, a], xa, lga, aha, absa)
+        near = w["near"]
+        if np.any(near):  # γ from the composition at this x, made self-consistent, then the species again
+            w["lg"][:, near], w["slope"][:, near] = _gammas_and_slopes(net, m[:, near], w["t"][near], ionic[near],
+                                                                        choice)
+            m = _molalities(net, w["logk"], w["x"], w["lg"], w.arrays.get("ah"), w["alive"])
+            e = _gamma_shift(net, w["slope"], unknown)
+            delta = (0.5 * z2 @ m - ionic) / np.maximum(1.0 - 0.5 * z2 @ (m * e), 0.1) * near
+            w["lg"] += w["slope"] * (delta / LN10)
+            m = _molalities(net, w["logk"], w["x"], w["lg"], w.arrays.get("ah"), w["alive"])
         tot = net.nu.T @ m
-        scale = np.abs(net.nu.T) @ m + np.abs(tota) + 1e-300
-        ra = np.where(unknown[:, None] & ~absa, (tot - tota) / scale, 0.0)
-        na = np.max(np.abs(ra), axis=0) < _NEAR
-        settled = np.abs(ionic - ionic_prev[a]) <= 1e-12 * np.maximum(ionic, 1e-300)
-        conv = np.all(np.abs(ra) <= TOLERANCE, axis=0) & settled & na
-        lg[:, a], res[:, a], near[a], ionic_prev[a], converged[a] = lga, ra, na, ionic, conv
+        r = w["open"] * (tot - w["tot"]) / (abs_nu_t @ m + np.abs(w["tot"]) + 1e-300)
+        rmax = np.max(np.abs(r), axis=0)
+        settled = np.abs(ionic - w["ionic"]) <= 1e-12 * np.maximum(ionic, 1e-300)
+        conv = (rmax <= TOLERANCE) & settled & w["near"]
+        done = w.cols[conv]
+        x[:, done], lg[:, done], res[:, done], converged[done] = w["x"][:, conv], w["lg"][:, conv], r[:, conv], True
         if np.all(conv):
             break
         go = ~conv
-        if it <= _PCF_STEPS:
-            x[:, a[go]] = _pcf_step(net, m[:, go], tota[:, go], xa[:, go], unknown, absa[:, go])
-        else:
-            x[:, a[go]] = np.minimum(_newton_step(net, m[:, go], tot[:, go], tota[:, go], xa[:, go], unknown,
-                                                  absa[:, go]), cap[:, a[go]])
-        active = a[go]
-    m = _species(net, logk, x, lg, log_ah, absent)
+        if not np.all(go):  # converged samples leave the working set
+            w.keep(go)
+            m, tot, r, rmax, ionic = m[:, go], tot[:, go], r[:, go], rmax[go], ionic[go]
+        w["near"], w["ionic"] = rmax < _NEAR, ionic
+        newton = (rmax < _SWITCH) | (it > _PCF_STEPS)
+        if np.all(newton):
+            w["x"] = np.minimum(_newton_step(net, m, tot, w["tot"], w["x"], unknown, w["absent"], w["slope"]),
+                                w["cap"])
+            continue
+        nw, pc = newton, ~newton
+        if np.any(nw):
+            w["x"][:, nw] = np.minimum(_newton_step(net, m[:, nw], tot[:, nw], w["tot"][:, nw], w["x"][:, nw],
+                                                    unknown, w["absent"][:, nw], w["slope"][:, nw]),
+                                       w["cap"][:, nw])
+        w["x"][:, pc] = _pcf_step(net, m[:, pc], w["tot"][:, pc], w["x"][:, pc], unknown, w["absent"][:, pc])
+    else:
+        x[:, w.cols], lg[:, w.cols], res[:, w.cols] = w["x"], w["lg"], r
+    m = _molalities(net, logk, x, lg, log_ah, alive)
     ionic = 0.5 * z2 @ m
     return State(m, lg, ionic, totals, converged, res, it, choice, ())
-
-
-def _species(net: Network, logk: np.ndarray, x: np.ndarray, lg: np.ndarray, log_ah: np.ndarray | None,
-             absent: np.ndarray) -> np.ndarray:
-    """Molalities of every species; zero for species of an absent component."""
-    n_c = len(net.components)
-    m = np.power(10.0, _log_m(net, logk, x, lg, log_ah))
-    m[:n_c][absent] = 0.0
-    m[n_c:] *= ~np.any(absent[None, :, :] & (net.nu[n_c:, :, None] != 0), axis=1)
-    return m
 
 
 def _pcf_step(net: Network, m: np.ndarray, totals: np.ndarray, x: np.ndarray, unknown: np.ndarray,
@@ -427,27 +510,100 @@ def _gammas(net: Network, m: np.ndarray, t: np.ndarray, choice: ModelChoice) -> 
     return np.asarray(choice.info.kernel(Batch.of(net.species, m, t), choice.options)[0])
 
 
+def _start_gammas(net: Network, totals: np.ndarray, t: np.ndarray, choice: ModelChoice) -> np.ndarray:
+    """log10 γ with every component free at its total: the start, so that switching the
+    activity coefficients on near the answer does not throw the balances back."""
+    m0 = np.zeros((len(net.species), totals.shape[1]))
+    m0[: len(net.components)] = np.maximum(totals, 0.0)
+    m0[net.h] = 1e-7
+    return _gammas(net, m0, t, choice)
+
+
+_RAISE = 1e-5  # relative rise of every molality for the numerical ∂ln γ/∂I
+
+
+def _gammas_and_slopes(net: Network, m: np.ndarray, t: np.ndarray, ionic: np.ndarray,
+                       choice: ModelChoice) -> tuple[np.ndarray, np.ndarray]:
+    """log10 γ of every species and ∂ln γ/∂I (kg/mol), the latter from every molality raised by
+    :data:`_RAISE` (exact for models of I alone; along the composition for the others)."""
+    lg = _gammas(net, m, t, choice)
+    up = _gammas(net, m * (1.0 + _RAISE), t, choice)
+    return lg, (up - lg) * LN10 / (_RAISE * np.maximum(ionic, 1e-300))
+
+
 def _newton_step(net: Network, m: np.ndarray, tot: np.ndarray, totals: np.ndarray, x: np.ndarray,
-                 unknown: np.ndarray, absent: np.ndarray) -> np.ndarray:
-    """One damped Newton step on ln m of the unknown components, all samples at once."""
-    n_c = len(net.components)
-    jac = (_pairs(net).T @ m).T.reshape(-1, n_c, n_c)  # J_jk = Σ_i ν_ij ν_ik m_i, one product for all samples
-    r = (tot - totals).T  # (N, n_c)
-    fixed = ~unknown[None, :] | absent.T
-    eye = np.eye(n_c)[None, :, :]
-    jac = np.where(fixed[:, :, None] | fixed[:, None, :], eye, jac)
-    r = np.where(fixed, 0.0, r)
-    scale = np.sqrt(np.maximum(np.einsum("Njj->Nj", jac), 1e-300))  # symmetric scaling for conditioning
-    js = jac / scale[:, :, None] / scale[:, None, :] + 1e-13 * eye  # scaled, and never singular
-    dx = np.nan_to_num(-np.linalg.solve(js, (r / scale)[..., None])[..., 0] / scale)
-    big = np.max(np.abs(dx), axis=1, keepdims=True)
-    dx = dx * np.minimum(1.0, _MAX_STEP / np.maximum(big, 1e-300))
-    return np.asarray(x + dx.T)
+                 unknown: np.ndarray, absent: np.ndarray, slope: np.ndarray) -> np.ndarray:
+    """One damped Newton step on ln m of the unknown components, all samples at once.
+
+    The Jacobian of the balances at fixed γ, J_jk = Σ_i ν_ij ν_ik m_i, is one matrix product
+    for the whole batch. Activity coefficients move with the ionic strength: with
+    ``slope`` = ∂ln γ/∂I, ln m_i moves by e_i·dI/dx_k where e_i = Σ_k ν_ik ∂ln γ_k/∂I − ∂ln γ_i/∂I
+    and dI/dx_k = q_k/(1 − ½Σ_i z_i² m_i e_i), q_k = ½ Σ_i z_i² ν_ik m_i (the denominator is the
+    feedback of γ on I). This adds a rank-one term p qᵀ to J (p_j = Σ_i ν_ij m_i e_i) and keeps
+    the convergence quadratic where γ changes (exact for models of I alone, checked against
+    finite differences in the tests). An absent component's row and column
+    are zero (no species holds it) and get a unit diagonal, so every matrix is solvable.
+    Diagonal scaling keeps the stack well conditioned across twenty decades of concentration.
+    """
+    u = np.flatnonzero(unknown)
+    k = len(u)
+    nu = net.nu[:, u]
+    jac = (_pairs(net, unknown).T @ m).reshape(k, k, -1)  # (k, k, N): samples last, contiguous
+    fixed = absent[u].astype(float)  # (k, N)
+    diag = np.einsum("jjn->jn", jac)
+    diag += fixed + 1e-300
+    d = 1.0 / np.sqrt(diag)  # scaling from the fixed-γ diagonal, which is never negative
+    me = m * _gamma_shift(net, slope, unknown)
+    feedback = 1.0 - 0.5 * net.z2 @ me  # I moves γ, which moves I again: dI/dx = q / (1 − ½Σz²m e)
+    q = (0.5 * (net.z2[:, None] * nu).T @ m) / np.maximum(feedback, 0.1)
+    jac += (nu.T @ me)[:, None, :] * q[None, :, :]
+    r = (tot[u] - totals[u]) * (1.0 - fixed)
+    js = jac * d[:, None, :] * d[None, :, :]
+    js[np.arange(k), np.arange(k)] += 1e-13  # never singular
+    dx = -_solve_stack(js, r * d) * d
+    big = np.max(np.abs(dx), axis=0)
+    dx *= np.minimum(1.0, _MAX_STEP / np.maximum(big, 1e-300))
+    out = np.array(x)
+    out[u] += dx
+    return out
 
 
-def _pairs(net: Network) -> np.ndarray:
-    """ν_ij ν_ik for every species, flattened to (n_species, n_c²)."""
-    return (net.nu[:, :, None] * net.nu[:, None, :]).reshape(len(net.species), -1)
+def _gamma_shift(net: Network, slope: np.ndarray, unknown: np.ndarray) -> np.ndarray:
+    """∂ln m_i/∂I at fixed free components: e_i = Σ_k ν_ik ∂ln γ_k/∂I − ∂ln γ_i/∂I over the
+    unknown components k (a held a(H+) fixes m(H+)·γ(H+) instead)."""
+    return np.asarray(net.nu[:, unknown] @ slope[: len(net.components)][unknown] - slope)
+
+
+def _solve_stack(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Solve a stack of small systems, a (k, k, N) and b (k, N) with the samples last.
+
+    Gaussian elimination vectorised over the stack, faster than a LAPACK call per matrix
+    for k ≲ 10. The matrices are diagonally scaled Jacobians with a unit diagonal, so no
+    pivoting is needed as a rule; samples whose elimination breaks down (a non-finite
+    result) are solved again by the pseudo-inverse, which also gives singular ones a step.
+    """
+    k = b.shape[0]
+    u, y = np.array(a), np.array(b)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        for c in range(k):
+            f = u[c + 1:, c] / u[c, c]
+            u[c + 1:, c:] -= f[:, None, :] * u[None, c, c:]
+            y[c + 1:] -= f * y[c]
+        x = np.empty_like(y)
+        for c in range(k - 1, -1, -1):
+            x[c] = (y[c] - np.einsum("jn,jn->n", u[c, c + 1:], x[c + 1:])) / u[c, c]
+    bad = ~np.all(np.isfinite(x), axis=0)
+    bad &= np.all(np.isfinite(a), axis=(0, 1)) & np.all(np.isfinite(b), axis=0)
+    if np.any(bad):  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
+        x[:, bad] = (np.linalg.pinv(a[:, :, bad].transpose(2, 0, 1)) @ b[:, bad].T[..., None])[..., 0].T
+    return np.nan_to_num(x, nan=0.0, posinf=0.0, neginf=0.0)
+
+
+def _pairs(net: Network, unknown: np.ndarray) -> np.ndarray:
+    """ν_ij ν_ik over the unknown components for every species, flattened to (n_species, k²)."""
+    nu = net.nu[:, unknown]
+    return (nu[:, :, None] * nu[:, None, :]).reshape(len(net.species), -1)
+
 
 
 @dataclass(frozen=True)
