@@ -195,3 +195,37 @@ def test_ph_of_a_composition():
     # acetic acid 0.01 mol/kg alone: pH ≈ ½(pKa − log c) = 3.38 before activity corrections (hand)
     ph = ia.ph_of(ia.Solution({"CH3COOH": 0.01}), model="davies")
     assert ph == pytest.approx(3.38, abs=0.02)
+
+
+def test_newton_jacobian_matches_finite_differences():
+    # the solver's Jacobian (fixed-γ part plus the rank-one γ(I) term with its feedback) equals
+    # central differences of the balances with γ iterated to self-consistency (Davies: γ of I alone)
+    from ionact.equilibrium import _gammas, _gammas_and_slopes, _molalities, _newton_step, network_for
+    from ionact.models.registry import Batch
+    from ionact.models.resolver import choice_for, resolve_model
+    from ionact.species import resolve_ion
+
+    net = network_for([resolve_ion(n) for n in ["K+", "H2PO4-", "Na+", "HPO4^2-"]])
+    n_c, n_s = len(net.components), len(net.species)
+    t = np.array([25.0])
+    name, opts, fb = choice_for("davies")
+    choice = resolve_model(Batch.of(net.species, np.full((n_s, 1), 0.01), t), name, options=opts, fallback=fb)
+    logk, alive = net.log_k_at(t), np.ones((n_s, 1))
+    x = np.log(np.array([[1e-7], [0.025], [1e-7], [0.05]]))  # H+, K+, PO4^3-, Na+ free (pH ≈ 7)
+
+    def balances(x):
+        lg = np.zeros((n_s, 1))
+        for _ in range(300):
+            lg = _gammas(net, _molalities(net, logk, x, lg, None, alive), t, choice)
+        m = _molalities(net, logk, x, lg, None, alive)
+        return net.nu.T @ m, m
+
+    tot, m = balances(x)
+    numeric = np.column_stack([((balances(x + h)[0] - balances(x - h)[0]) / 2e-6)[:, 0]
+                               for h in np.eye(n_c)[:, :, None] * 1e-6])
+    _, slope = _gammas_and_slopes(net, m, t, 0.5 * net.z2 @ m, choice)
+    # one Newton step from x towards totals tot + J·dx must be dx, for a chosen dx
+    dx = np.array([[0.01], [-0.02], [0.015], [0.005]])
+    step = _newton_step(net, m, tot, tot + numeric @ dx, x, np.ones(n_c, dtype=bool),
+                        np.zeros((n_c, 1), dtype=bool), slope) - x
+    assert step[:, 0] == pytest.approx(dx[:, 0], rel=1e-5)
