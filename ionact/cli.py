@@ -160,6 +160,25 @@ def cmd_convert(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def cmd_speciate(args: argparse.Namespace) -> int:
+    from .equilibrium import speciate
+    from .species import typeset
+
+    if not args.terms:
+        raise IonactError("give a composition of totals, e.g. 'ionact speciate NaF=1e-4 AlCl3=2e-5 --ph 5.5'")
+    sol = _solution(args)
+    ph = _quantity(args.ph, "", "--ph")
+    s = speciate(sol, pH=ph, model=args.model, missing=args.missing)
+    how = "held at the given value" if ph is not None else "solved from the proton balance"
+    lines = [s.table(limit=args.limit), f"pH {how}", "fractions of each component's total:"]
+    for comp, parts in s.fractions.items():
+        shares = sorted(((float(f), typeset(sp)) for sp, f in parts.items()), reverse=True)
+        lines.append(f"  {typeset(comp):<10} " + ", ".join(f"{name} {100 * f:.3g} %" for f, name in shares
+                                                          if f >= 1e-4))
+    _emit(args, s.to_dict(), "\n".join(lines), "ionact-speciation")
+    return EXIT_OK
+
+
 def _check_figure_path(path: str | None) -> None:
     from .samples import FIGURE_FORMATS
 
@@ -346,6 +365,16 @@ def build_parser() -> argparse.ArgumentParser:
     _model_arg(c)
     c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
     c.set_defaults(func=cmd_convert)
+
+    sp = job("speciate", "chemical equilibrium of a composition of totals: species, fractions, pH, saturation",
+             "ionact speciate NaF=1e-4 AlCl3=2e-5 --ph 5.5 --json")
+    _composition_args(sp)
+    sp.add_argument("--ph", help="hold the pH at this value (activity scale); default: solved from the proton "
+                    "balance")
+    _model_arg(sp)
+    sp.add_argument("--missing", default="error", help="missing parameters: error, zero, or a fallback model")
+    sp.add_argument("--limit", type=int, default=40, help="largest number of species listed (default 40)")
+    sp.set_defaults(func=cmd_speciate)
 
     de = job("design", "design or evaluate an ionic strength adjuster from a method file",
              "ionact design --example nitrate_irrigation --out design.json --plot design.png")

@@ -162,6 +162,16 @@ class Network:
         return tuple(c.name for c in self.components)
 
     @property
+    def paired(self) -> frozenset[frozenset[str]]:
+        """The pairs of components that form a species together (their association is solved)."""
+        n_c = len(self.components)
+        out: set[frozenset[str]] = set()
+        for row in self.nu[n_c:]:
+            held = [self.components[j].name for j in np.flatnonzero(row > 0)]
+            out.update(frozenset((a, b)) for a in held for b in held if a != b)
+        return frozenset(out)
+
+    @property
     def z2(self) -> np.ndarray:
         """Squared charge of every species."""
         return np.array([s.charge**2 for s in self.species], dtype=float)
@@ -860,7 +870,7 @@ def _result(net: Network, state: State, shape: tuple[int, ...], t: np.ndarray,
             solids: Mapping[str, float] | None, ph: np.ndarray | None) -> Speciation:
     n_c = len(net.components)
     m, lg = state.molality, state.log10_gamma
-    ev = evaluate(state.choice, Batch.of(net.species, m, t))
+    ev = evaluate(state.choice, Batch.of(net.species, m, t), paired=net.paired)
     notes = list(ev.notes) + [str(v) for v in ev.violations] + net.temperature_notes(t)
     status, reason = _statuses(net, state)
     if not shape and not bool(state.converged[0]):
@@ -980,7 +990,7 @@ def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model
     lg = _stoichiometric(net, state, inputs)
     if not checks:
         return Step(ch, lg, state, net, (), ())
-    ev = evaluate(ch, Batch.of(net.species, state.molality, t))
+    ev = evaluate(ch, Batch.of(net.species, state.molality, t), paired=net.paired)
     return Step(ch, lg, state, net, ev.notes + tuple(net.temperature_notes(t)), ev.violations)
 
 

@@ -160,3 +160,34 @@ def test_method_file_custom_component(capsys, tmp_path):
     line = next(r for r in data["recipe"] if r["component"] == "Na4CDTA")
     assert rc == 0 and line["role"] == "fixed" and line["mol_per_l"] == pytest.approx(0.01)
     assert "C14H18N2O8^4-" in data["species"]
+
+
+def test_speciate_text_and_json_agree(capsys):
+    # the printed free fraction and the JSON field come from one Speciation
+    rc, out, _ = run(capsys, "speciate", "NaF=1e-4", "AlCl3=2e-5", "--ph", "5.5", "--model", "davies")
+    assert rc == 0 and "AlF₂⁺" in out and "pH held" in out and "fractions" in out
+    rc, js, _ = run(capsys, "speciate", "NaF=1e-4", "AlCl3=2e-5", "--ph", "5.5", "--model", "davies", "--json")
+    data = json.loads(js)
+    assert data["format"] == "ionact-speciation" and data["pH"] == pytest.approx(5.5)
+    free_f = data["fractions"]["F-"]["F-"]
+    assert 0.3 < free_f < 0.8
+    assert f"F⁻ {100 * free_f:.3g} %" in out
+
+
+def test_speciate_solves_ph_and_screens_solids(capsys):
+    rc, out, _ = run(capsys, "speciate", "CaSO4=0.01", "NaHCO3=2 mmol/kg", "--json")
+    assert rc == 0
+    data = json.loads(out)
+    assert 7.0 < data["pH"] < 9.0 and "CaSO4" in data["saturation_index"]
+    assert not any("treats every ion as free" in n for n in data["notes"])  # pairs are solved, not warned about
+
+
+@pytest.mark.parametrize("argv,needle", [
+    (["speciate", "NaF=1e-4", "--ph", "15"], "outside 0–14"),
+    (["speciate", "NaF=1e-4", "--ph", "5,5"], "5.5"),
+    (["speciate", "Xx=1"], "Xx"),
+    (["speciate"], "composition"),
+])
+def test_speciate_bad_input(capsys, argv, needle):
+    rc, _, err = run(capsys, *argv)
+    assert rc == 2 and needle in err and len(err.strip().splitlines()) == 1

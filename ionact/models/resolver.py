@@ -191,17 +191,22 @@ def log10_gamma(choice: ModelChoice, batch: Batch) -> np.ndarray:
     return choice.info.kernel(batch, choice.options)[0]
 
 
-def evaluate(choice: ModelChoice, batch: Batch) -> Evaluation:
-    """Run the chosen model on a batch: log10 γ, the model's notes, and range problems."""
+def evaluate(choice: ModelChoice, batch: Batch, *, paired: frozenset[frozenset[str]] = frozenset()) -> Evaluation:
+    """Run the chosen model on a batch: log10 γ, the model's notes, and range problems.
+
+    ``paired`` names the cation–anion pairs whose association the equilibrium step already
+    solves; the free-ion association warning leaves them out.
+    """
     info = choice.info
     lg, notes = info.kernel(batch, choice.options)
     problems = info.violations(batch, choice.options)
     if info.name in DH_FAMILY and choice.requested == "auto":
-        problems += _association_warning(batch, lg, info.name)
+        problems += _association_warning(batch, lg, info.name, paired)
     return Evaluation(lg, tuple(notes), tuple(problems))
 
 
-def _association_warning(batch: Batch, lg: np.ndarray, model: str) -> list[Violation]:
+def _association_warning(batch: Batch, lg: np.ndarray, model: str,
+                         paired: frozenset[frozenset[str]] = frozenset()) -> list[Violation]:
     """A free-ion model meets ions that pair: say so, with an estimate of the error.
 
     The local estimate uses Fuoss's (1958) association constant for contact pairs,
@@ -216,7 +221,8 @@ def _association_warning(batch: Batch, lg: np.ndarray, model: str) -> list[Viola
     worst: tuple[float, str] | None = None
     for i in cat:
         for j in an:
-            if batch.z[i] * -batch.z[j] < ASSOCIATION_CHARGE_PRODUCT:
+            if batch.z[i] * -batch.z[j] < ASSOCIATION_CHARGE_PRODUCT or \
+                    frozenset((batch.names[i], batch.names[j])) in paired:
                 continue
             mi, mj = batch.m[i], batch.m[j]
             sel = (batch.ionic > ASSOCIATION_IONIC_STRENGTH) & (mi > 0) & (mj > 0)
