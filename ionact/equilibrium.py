@@ -247,10 +247,12 @@ def _user_species(species: Iterable[Complex] | None) -> dict[str, tuple[dict[str
 
 
 def network_for(inputs: Sequence[Ion], *, species: Iterable[Complex] | None = None,
-                exclude_kinds: Iterable[str] = ()) -> Network:
+                exclude_kinds: Iterable[str] = (), strict: bool = True) -> Network:
     """The network for these input species: their components, and every table (or given)
     species whose components are all present. ``exclude_kinds`` leaves out kinds of species
-    (e.g. the weak ion pairs for a model whose parameters already hold them)."""
+    (e.g. the weak ion pairs for a model whose parameters already hold them). A given species
+    whose components are absent is an error when ``strict``, else left out (a job's
+    standards lack the matrix ions its samples carry)."""
     table = _table_species()
     user = _user_species(species)
     known_ions = {i.name: i for i in inputs}
@@ -286,7 +288,7 @@ def network_for(inputs: Sequence[Ion], *, species: Iterable[Complex] | None = No
             continue
         if all(c in comp_names for c in comps):
             formed.append((name, comps, lk_c, dh_c, part_c, kind, src))
-        elif name in user:
+        elif name in user and strict:
             absent = sorted(c for c in comps if c not in comp_names)
             raise InputError(f"species {name} is formed from {', '.join(absent)}, which the solution does not contain")
     all_names = comp_names + [f[0] for f in formed]
@@ -932,7 +934,7 @@ def _cached_network(inputs: tuple[Ion, ...], exclude: tuple[str, ...]) -> Networ
 def _network(inputs: tuple[Ion, ...], species: Iterable[Complex] | None, exclude: tuple[str, ...]) -> Network:
     if species is None:
         return _cached_network(inputs, exclude)
-    return network_for(inputs, species=species, exclude_kinds=exclude)
+    return network_for(inputs, species=species, exclude_kinds=exclude, strict=False)
 
 
 ASSOCIATING_KINDS = frozenset({"pair", "complex", "hydrolysis"})

@@ -3,7 +3,8 @@
 Each table maps one to one onto a record of the job (``[budget]`` → :class:`Budget`,
 ``[samples]`` → :class:`SamplePopulation`, ``[electrode]`` → :class:`Electrode`,
 ``[adjuster.buffer]`` → :class:`Buffer`, ``[adjuster.stock]`` → stock components,
-``[species.NAME]`` → an :class:`~ionact.Ion` the tables lack). The keys are listed once,
+``[species.NAME]`` → an :class:`~ionact.Ion` the tables lack, ``[complexes.NAME]`` → a
+:class:`~ionact.Complex` for the equilibrium). The keys are listed once,
 in :data:`METHOD_KEYS`, which both the reader and ``ionact design --help-keys`` use.
 Unknown or missing keys are errors naming the key and the file. Files are read with
 ``tomllib`` (no code is executed).
@@ -18,6 +19,7 @@ from pathlib import Path
 from typing import Any
 
 from .adjuster import Budget, Buffer, Electrode, SamplePopulation, StockComponent
+from .equilibrium import Complex
 from .errors import InputError
 from .species import Ion, resolve_ion
 
@@ -36,6 +38,7 @@ METHOD_KEYS: dict[str, dict[str, str]] = {
         "missing": "\"error\", \"zero\" or a fallback model name when a model lacks parameters",
         "density": "\"water\" to take 1 L of solution as ρ_w kg of water (default: the density model)",
         "levels": "analyte levels (and default standards) across the range (default 7)",
+        "equilibrium": "true/false: speciate the treated solutions (default: when ions react or a buffer is set)",
     },
     "budget": {"mv": "largest |ΔE| in mV",
                "percent": "largest relative error in % (exactly one of the two)"},
@@ -62,6 +65,13 @@ METHOD_KEYS: dict[str, dict[str, str]] = {
     "species.NAME": {"formula": "chemical formula without charge (required)", "charge": "signed charge (required)",
                      "molar_mass": "g/mol (default: from the formula)", "size": "ion-size parameter å, Å",
                      "volume": "apparent molar volume at infinite dilution, cm³/mol"},
+    "complexes.NAME": {"formula": "the species' formula, with or without charge notation (required)",
+                       "charge": "signed charge when the formula has no charge notation",
+                       "components": "{ion = count} it forms from; ions by notation or [species] name (required)",
+                       "log_k": "log10 overall formation constant at 25 °C, I = 0 (required)",
+                       "delta_h": "reaction enthalpy, kJ/mol (van 't Hoff temperature dependence)",
+                       "size": "ion-size parameter å, Å", "kind": "complex, acid, pair or hydrolysis",
+                       "source": "where the constant comes from"},
 }
 
 
@@ -193,6 +203,24 @@ def _electrode(data: Mapping[str, Any], src: str) -> Electrode:
     return Electrode(linear_range=el.get("linear_range"), selectivity=sel)
 
 
+def _complexes(data: Mapping[str, Any], species: Mapping[str, Ion], src: str) -> list[Complex]:
+    out = []
+    for key, spec in _table(data, "complexes", src, required=False).items():
+        where = f"[complexes.{key}]"
+        if not isinstance(spec, dict):
+            raise InputError(f"{src}: {where} must be a table")
+        _check_keys(spec, "complexes.NAME", src)
+        comps = _need(spec, "components", where, src)
+        if not isinstance(comps, dict) or not comps:
+            raise InputError(f"{src}: {where} components must be a table of ion = count")
+        out.append(Complex(formula=_need(spec, "formula", where, src),
+                           components={species.get(k, k): n for k, n in comps.items()},
+                           log_k=_need(spec, "log_k", where, src), delta_h=spec.get("delta_h"),
+                           charge=spec.get("charge"), size=spec.get("size"), kind=spec.get("kind", "complex"),
+                           source=str(spec.get("source", f"method file {src}"))))
+    return out
+
+
 def load_method(path: Any) -> dict[str, Any]:
     """Read a method file into keyword arguments for :func:`ionact.design_adjuster`.
 
@@ -206,7 +234,8 @@ def load_method(path: Any) -> dict[str, Any]:
     top = {k: v for k, v in data.items() if not isinstance(v, dict)}
     tables = set(data) - set(top)
     _check_keys(top, "(top level)", src)
-    unknown = sorted(tables - {"budget", "analyte_range", "samples", "adjuster", "electrode", "species"})
+    unknown = sorted(tables - {"budget", "analyte_range", "samples", "adjuster", "electrode", "species",
+                               "complexes"})
     if unknown:
         raise InputError(f"{src}: unknown table(s) {', '.join(unknown)}")
     try:
@@ -222,7 +251,7 @@ def _job(data: Mapping[str, Any], top: Mapping[str, Any], src: str) -> dict[str,
     if not isinstance(analyte, str):
         raise InputError(f"{src}: analyte {analyte!r} must be an ion notation such as \"F-\"")
     kw: dict[str, Any] = {"analyte": species.get(analyte) or analyte}
-    for key in ("name", "temperature", "lowest_temperature", "model", "missing", "density", "levels"):
+    for key in ("name", "temperature", "lowest_temperature", "model", "missing", "density", "levels", "equilibrium"):
         if key in top:
             kw[key] = top[key]
     budget = _table(data, "budget", src)
@@ -250,4 +279,7 @@ def _job(data: Mapping[str, Any], top: Mapping[str, Any], src: str) -> dict[str,
                               pH=_need(buf, "pH", "[adjuster.buffer]", src), total=buf.get("total", 1.0),
                               pka=buf.get("pka"))
     kw["electrode"] = _electrode(data, src)
+    complexes = _complexes(data, species, src)
+    if complexes:
+        kw["complexes"] = complexes
     return kw

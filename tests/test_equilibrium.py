@@ -229,3 +229,50 @@ def test_newton_jacobian_matches_finite_differences():
     step = _newton_step(net, m, tot, tot + numeric @ dx, x, np.ones(n_c, dtype=bool),
                         np.zeros((n_c, 1), dtype=bool), slope) - x
     assert step[:, 0] == pytest.approx(dx[:, 0], rel=1e-5)
+
+
+def _fluoride_job():
+    from ionact.method import load_method
+
+    return load_method("example:fluoride_buffered")
+
+
+def test_method_file_complexes_are_real_ligands():
+    kw = _fluoride_job()
+    names = {c.ion.name for c in kw["complexes"]}
+    assert "AlC14H18N2O8-" in names and "HC14H18N2O8^3-" in names
+    al = next(c for c in kw["complexes"] if c.ion.name == "AlC14H18N2O8-")
+    assert dict(al.components) == {"Al^3+": 1, "C14H18N2O8^4-": 1} and al.log_k == 19.5
+
+
+def test_the_fluoride_design_proves_its_complexing_agent():
+    # with the stated aluminium in the samples and the complexing agent in the stock, the worst sample's free
+    # fluoride matches the standards'; without the agent, aluminium binds it and the design fails on that check
+    kw = _fluoride_job()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ia.ValidityRangeWarning)
+        made = ia.design_adjuster(**kw)
+        bare = ia.design_adjuster(**{**kw, "stock": [c for c in kw["stock"] if c.name != "Na4CDTA"]})
+    ok = next(c for c in made.checks if c.name == "free fraction of F-")
+    bad = next(c for c in bare.checks if c.name == "free fraction of F-")
+    assert ok.status == "ok" and bad.status == "fail"
+    assert "AlF" in bad.detail and bad.value < 0.5 * ok.value
+    # the standards carry no matrix ions: their free share is the same with or without the agent's aluminium
+    ref = float(ok.detail.split("against ")[1].split("%")[0])
+    assert ref > 70.0
+
+
+@pytest.mark.parametrize("table,needle", [
+    ('[complexes.X]\nformula = "AlF"\ncharge = 2\ncomponents = { "Al^3+" = 1, "F-" = 1 }\n', "log_k"),
+    ('[complexes.X]\nformula = "AlF"\ncharge = 2\ncomponents = { "Al^3+" = 1 }\nlog_k = "high"\n', "log_k"),
+    ('[complexes.X]\nformula = "AlF"\ncharge = 2\ncomponents = []\nlog_k = 7\n', "components"),
+    ('[complexes.X]\nformula = "AlF"\ncharge = 2\ncomponents = { "Al^3+" = 1 }\nlog_k = 7\nbeta = 1\n', "beta"),
+])
+def test_method_file_complex_errors_are_named(tmp_path, table, needle):
+    from ionact.method import example_path, load_method
+
+    text = example_path("nitrate_irrigation").read_text(encoding="utf-8") + "\n" + table
+    path = tmp_path / "m.toml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(ia.InputError, match=needle):
+        load_method(path)

@@ -205,7 +205,7 @@ def _checks(system: System, ev: Evaluated, result: SearchResult, an: Ion, sample
         checks += more
     ph = plan.pH if plan is not None else samples.ph
     checks += check_interference(system, ev, an, electrode, samples, result.ratio, job.budget_mv, ph, declared)
-    checks += check_protonation(system, ev, an, ph)[0]
+    checks += check_protonation(system, ev, an, ph, samples, result.ratio, job.budget_mv)[0]
     return checks, buffer_info
 
 

@@ -32,7 +32,7 @@ from ..species import Ion, Salt, resolve_ion
 from ..tables import acid_table, ksp_table
 from .inputs import Electrode, SamplePopulation
 from .solve import BufferPlan, stock_saturation
-from .system import Evaluated, System
+from .system import Evaluated, System, free_fraction_of
 
 __all__ = ["Check", "STATUSES", "aux_step", "check_solubility", "check_model_range", "check_budget",
            "check_linear_range", "check_interference", "check_precipitation", "check_buffer", "check_protonation",
@@ -352,16 +352,24 @@ def _free_lg(ev: Evaluated, name: str, fallback: np.ndarray) -> np.ndarray:
     return np.asarray(st.log10_gamma[net.names.index(name)])
 
 
-def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | None) -> tuple[list[Check], str]:
+def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | None, pop: SamplePopulation,
+                      ratio: float, budget_mv: float) -> tuple[list[Check], str]:
     """The analyte's free share in the treated solutions: protonation, ion pairs and complexes.
 
     With an equilibrium (a buffer, or ions that associate) the free fraction comes from the
-    speciation of every treated sample and standard; otherwise from the acid–base pair at the
-    stated pH (activity-corrected Henderson–Hasselbalch).
+    speciation of every treated sample — with the matrix ions the samples declare (aluminium,
+    iron, calcium…) at their highest levels — and every standard; otherwise from the
+    acid–base pair at the stated pH (activity-corrected Henderson–Hasselbalch).
     """
-    free = ev.free_fraction(analyte.name)
+    step, note = ev.result, ""
+    if pop.matrix_ions and ev.free_fraction(analyte.name) is not None:
+        in_samples = np.arange(ev.batch.m.shape[1]) < ev.ls.size  # the standards carry no matrix ions
+        declared = {k: (ion, np.where(in_samples, m, 0.0))
+                    for k, (ion, m) in _declared_molalities(system, ev.batch, pop, ratio).items()}
+        step, _aug, note = aux_step(system, ev.batch, declared)
+    free = free_fraction_of(step, analyte.name)
     if free is not None:
-        return [_free_fraction_check(system, ev, analyte, free)], ""
+        return [_free_fraction_check(system, ev, step, analyte, free, budget_mv, note)], ""
     pair = next(((a, b, pka) for (a, b), (pka, _) in acid_table().items() if analyte.name in (a, b)), None)
     if pair is None:
         return [], ""
@@ -390,11 +398,12 @@ def check_protonation(system: System, ev: Evaluated, analyte: Ion, ph: float | N
                   detail)], note
 
 
-def _free_fraction_check(system: System, ev: Evaluated, analyte: Ion, free: np.ndarray) -> Check:
+def _free_fraction_check(system: System, ev: Evaluated, step: Step, analyte: Ion, free: np.ndarray,
+                         budget_mv: float, note: str) -> Check:
+    """The worst sample's free share of the analyte against the standards', and the bias it leaves in mV."""
     n_s = ev.ls.size
     samples, standards = free[:n_s], free[n_s:]
     k = int(np.argmin(samples))
-    step = ev.result
     assert step.state is not None and step.network is not None
     net, st = step.network, step.state
     j = net.names.index(analyte.name)
@@ -404,9 +413,12 @@ def _free_fraction_check(system: System, ev: Evaluated, analyte: Ion, free: np.n
     bound = ", ".join(f"{name} {share:.1%}" for share, name in holders[:3] if share >= 1e-4)
     worst = float(samples[k])
     ref = float(np.median(standards))
-    status = "ok" if worst >= MEASURED_FORM_LIMIT * ref else "warning"
-    detail = (f"free {analyte.name} in the worst treated sample, against {ref:.2%} in the standards"
+    bias_mv = abs(float(nernst_slope(analyte.charge, system.temperature)) * math.log10(ref / worst))
+    status = "fail" if bias_mv > budget_mv else ("ok" if worst >= MEASURED_FORM_LIMIT * ref else "warning")
+    detail = (f"free {analyte.name} in the worst treated sample, against {ref:.2%} in the standards: a bias of "
+              f"{bias_mv:.3g} mV (budget {budget_mv:.3g} mV) the adjuster does not remove"
               + (f"; bound as {bound}" if bound else "")
+              + (f"; samples with their declared matrix ions, {note}" if note else "")
               + ("" if status == "ok" else "; the samples bind the analyte more than the standards do: a "
                  "complexing agent or another pH would free it"))
     return Check(f"free fraction of {analyte.name}", status, 100.0 * worst, 100.0 * MEASURED_FORM_LIMIT * ref, "%",

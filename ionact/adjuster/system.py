@@ -32,6 +32,16 @@ __all__ = ["System", "Evaluated", "SampleSet", "sample_set", "analyte_levels", "
 SAMPLE_LEVELS = 9  # ionic strengths modelled across a stated range
 
 
+def free_fraction_of(step: Step, name: str) -> np.ndarray | None:
+    """Free share of a component's total in every column of a step (None without speciation)."""
+    st, net = step.state, step.network
+    if st is None or net is None or name not in net.names:
+        return None
+    i = net.names.index(name)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.asarray(np.where(st.totals[i] > 0, st.molality[i] / st.totals[i], 1.0))
+
+
 @dataclass(frozen=True)
 class SampleSet:
     """The untreated samples as a batch Solution, with labels and how they were obtained."""
@@ -127,12 +137,7 @@ class Evaluated:
 
     def free_fraction(self, name: str) -> np.ndarray | None:
         """Free share of a component's total in every treated solution (None without speciation)."""
-        st, net = self.result.state, self.result.network
-        if st is None or net is None or name not in net.names:
-            return None
-        i = net.names.index(name)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            return np.asarray(np.where(st.totals[i] > 0, st.molality[i] / st.totals[i], 1.0))
+        return free_fraction_of(self.result, name)
 
     @property
     def ionic_max(self) -> np.ndarray:
