@@ -81,7 +81,7 @@ class Complex:
     """
 
     formula: str
-    components: Mapping[str, int]
+    components: Mapping[str, int]  # keys: ion notation, or Ion objects (stored by name)
     log_k: float
     delta_h: float | None = None
     charge: int | None = None

@@ -16,7 +16,7 @@ import tomllib
 from collections.abc import Mapping
 from importlib import resources
 from pathlib import Path
-from typing import Any
+from typing import Any, cast
 
 from .adjuster import Budget, Buffer, Electrode, SamplePopulation, StockComponent
 from .equilibrium import Complex
@@ -214,7 +214,7 @@ def _complexes(data: Mapping[str, Any], species: Mapping[str, Ion], src: str) ->
         if not isinstance(comps, dict) or not comps:
             raise InputError(f"{src}: {where} components must be a table of ion = count")
         out.append(Complex(formula=_need(spec, "formula", where, src),
-                           components={species.get(k, k): n for k, n in comps.items()},
+                           components=cast(Mapping[str, int], {species.get(k, k): n for k, n in comps.items()}),
                            log_k=_need(spec, "log_k", where, src), delta_h=spec.get("delta_h"),
                            charge=spec.get("charge"), size=spec.get("size"), kind=spec.get("kind", "complex"),
                            source=str(spec.get("source", f"method file {src}"))))
