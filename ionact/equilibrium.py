@@ -41,7 +41,7 @@ from .tables import complex_table, ksp_table
 from .water import GAS_CONSTANT, ZERO_CELSIUS
 
 __all__ = ["Complex", "Network", "Speciation", "speciate", "ph_of", "network_for", "equilibrate", "State",
-           "PAIR_KINDS", "MAX_ITERATIONS", "TOLERANCE"]
+           "free_fraction_of", "PAIR_KINDS", "MAX_ITERATIONS", "TOLERANCE"]
 
 PAIR_KINDS = frozenset({"pair"})  # weak ion pairs: left out when the model (Pitzer) already holds them
 MAX_ITERATIONS = 200
@@ -115,14 +115,19 @@ class Complex:
                 "source": self.source}
 
     @classmethod
-    def from_dict(cls, d: Mapping[str, Any]) -> Complex:
+    def from_dict(cls, d: Mapping[str, Any], species: Mapping[str, Ion] | None = None) -> Complex:
+        """From :meth:`to_dict`'s mapping; ``species`` resolves component names the tables lack
+        (a design's own ions)."""
         if not isinstance(d, Mapping):
             raise InputError(f"a complex must be a mapping, got {type(d).__name__}")
-        try:
-            return cls(d["formula"], d["components"], d["log_k"], d.get("delta_h"), d.get("charge"), d.get("size"),
-                       d.get("kind", "complex"), str(d.get("source", "given by the caller")))
-        except KeyError as exc:
-            raise InputError(f"a complex lacks {exc}") from None
+        missing = [k for k in ("formula", "components", "log_k") if k not in d]
+        if missing:
+            raise InputError(f"a complex lacks {', '.join(missing)}")
+        comps = d["components"]
+        if species and isinstance(comps, Mapping):
+            comps = {species.get(k, k) if isinstance(k, str) else k: n for k, n in comps.items()}
+        return cls(d["formula"], comps, d["log_k"], d.get("delta_h"), d.get("charge"), d.get("size"),
+                   d.get("kind", "complex"), str(d.get("source", "given by the caller")))
 
     @property
     def ion(self) -> Ion:
@@ -994,6 +999,16 @@ def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model
         return Step(ch, lg, state, net, (), ())
     ev = evaluate(ch, Batch.of(net.species, state.molality, t), paired=net.paired)
     return Step(ch, lg, state, net, ev.notes + tuple(net.temperature_notes(t)), ev.violations)
+
+
+def free_fraction_of(step: Step, name: str) -> np.ndarray | None:
+    """Free share of a component's total in every column of a step (None without speciation)."""
+    st, net = step.state, step.network
+    if st is None or net is None or name not in net.names:
+        return None
+    i = net.names.index(name)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        return np.asarray(np.where(st.totals[i] > 0, st.molality[i] / st.totals[i], 1.0))
 
 
 def _stoichiometric(net: Network, state: State, inputs: tuple[Ion, ...]) -> np.ndarray:

@@ -276,3 +276,22 @@ def test_method_file_complex_errors_are_named(tmp_path, table, needle):
     path.write_text(text, encoding="utf-8")
     with pytest.raises(ia.InputError, match=needle):
         load_method(path)
+
+
+def test_batch_check_names_the_binding_of_stated_aluminium():
+    # a sample with aluminium in its ion columns: freed by the design's complexing agent, bound without it;
+    # the design (with its own species and complexes) survives its JSON file
+    import json
+
+    kw = _fluoride_job()
+    cols = {"sample_id": ["clean", "aluminium"], "analyte [mg/L]": [0.2, 0.2], "Na+ [mg/L]": [20, 20],
+            "Cl- [mg/L]": [30.84, 30.84 + 3 * 1.0 / 26.98 * 35.45], "Al^3+ [mg/L]": [0.0, 1.0]}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ia.ValidityRangeWarning)
+        made = ia.design_adjuster(**kw)
+        bare = ia.design_adjuster(**{**kw, "stock": [c for c in kw["stock"] if c.name != "Na4CDTA"]})
+        freed = ia.check_samples(cols, json.loads(json.dumps(made.to_dict())))
+        bound = ia.check_samples(cols, bare)
+    assert freed.status == ("inside", "inside")
+    assert bound.status[0] == "inside" and bound.status[1] != "inside"
+    assert "the sample's ions bind it" in bound.reason[1] and bound.error_mv[1] > 10 * bare.budget_mv

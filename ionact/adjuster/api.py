@@ -12,7 +12,7 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import InputError
+from ..errors import InputError, UnknownSpeciesError
 from ..models.resolver import ModelChoice, choice_for
 from ..species import Ion, resolve_ion
 from ..tables import acid_table
@@ -403,5 +403,24 @@ def _assemble(result: SearchResult, job: Job, an: Ion, counter: Ion, pop: Sample
         cautions=_cautions(system), stock_ions=stock_ions, species=species, background=pop.background,
         density=system.density, buffer=buffer_info, samples=pop.to_dict(),
         scan=_scan_for_figure(system, job, result, job.slope), gamma_profile=_sample_profile(system, ev, job.slope),
-        equilibrium=system.equilibrium, complexes=tuple(c.to_dict() for c in system.species or ()),
+        equilibrium=system.equilibrium, complexes=_kept_complexes(system),
     )
+
+
+def _kept_complexes(system: System) -> tuple[dict[str, Any], ...]:
+    """The given complexes a design file can carry: those whose components are tabulated or
+    among the design's ions (one formed from an ion of a component left out of the stock
+    cannot form, and the file could not name that ion)."""
+    names = set(system.names)
+    out = []
+    for c in system.species or ():
+        if all(k in names or _tabulated(k) for k in c.components):
+            out.append(c.to_dict())
+    return tuple(out)
+
+
+def _tabulated(name: str) -> bool:
+    try:
+        return resolve_ion(name).tabulated
+    except UnknownSpeciesError:
+        return False

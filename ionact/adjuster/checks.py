@@ -23,7 +23,7 @@ import numpy as np
 from ..constants import PARAMETER_WINDOW
 from ..density import water_per_litre
 from ..electrode import nernst_slope
-from ..equilibrium import Step, species_step
+from ..equilibrium import Step, free_fraction_of, species_step
 from ..errors import InputError, MissingParameterError
 from ..models.registry import Batch
 from ..models.resolver import ModelChoice
@@ -32,7 +32,7 @@ from ..species import Ion, Salt, resolve_ion
 from ..tables import acid_table, ksp_table
 from .inputs import Electrode, SamplePopulation
 from .solve import BufferPlan, stock_saturation
-from .system import Evaluated, System, free_fraction_of
+from .system import Evaluated, System
 
 __all__ = ["Check", "STATUSES", "aux_step", "check_solubility", "check_model_range", "check_budget",
            "check_linear_range", "check_interference", "check_precipitation", "check_buffer", "check_protonation",

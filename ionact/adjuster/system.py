@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..density import water_per_litre
-from ..equilibrium import Complex, Step, species_step
+from ..equilibrium import Complex, Step, free_fraction_of, species_step
 from ..errors import InputError
 from ..estimates import ionic_strength_from_conductivity, ionic_strength_from_tds
 from ..models.registry import Batch
@@ -30,16 +30,6 @@ from .inputs import SamplePopulation, StockComponent, pair_of
 __all__ = ["System", "Evaluated", "SampleSet", "sample_set", "analyte_levels", "SAMPLE_LEVELS"]
 
 SAMPLE_LEVELS = 9  # ionic strengths modelled across a stated range
-
-
-def free_fraction_of(step: Step, name: str) -> np.ndarray | None:
-    """Free share of a component's total in every column of a step (None without speciation)."""
-    st, net = step.state, step.network
-    if st is None or net is None or name not in net.names:
-        return None
-    i = net.names.index(name)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        return np.asarray(np.where(st.totals[i] > 0, st.molality[i] / st.totals[i], 1.0))
 
 
 @dataclass(frozen=True)

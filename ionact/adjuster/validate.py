@@ -115,7 +115,7 @@ def _build(d: Mapping[str, Any]) -> AdjusterDesign:
         samples=_mapping(d.get("samples") or {}, "samples"), scan=_mapping(d.get("scan") or {}, "scan"),
         gamma_profile=_mapping(d.get("gamma_profile") or {}, "gamma_profile"),
         equilibrium=_equilibrium(d.get("equilibrium")),
-        complexes=tuple(_complex(c) for c in _list(d.get("complexes") or [], "complexes")),
+        complexes=tuple(_complex(c, species) for c in _list(d.get("complexes") or [], "complexes")),
     )
 
 
@@ -125,7 +125,10 @@ def _equilibrium(v: Any) -> bool | None:
     return v
 
 
-def _complex(c: Any) -> dict[str, Any]:
+def _complex(c: Any, species: Mapping[str, Ion]) -> dict[str, Any]:
     from ..equilibrium import Complex
 
-    return Complex.from_dict(_mapping(c, "complexes[]")).to_dict()
+    try:
+        return Complex.from_dict(_mapping(c, "complexes[]"), species).to_dict()
+    except UnknownSpeciesError as exc:
+        raise InputError(f"design field complexes: {exc}", field="complexes") from None

@@ -25,7 +25,7 @@ import numpy as np
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
 from ..electrode import nernst_slope
-from ..equilibrium import Complex, species_step
+from ..equilibrium import Complex, free_fraction_of, species_step
 from ..errors import InputError
 from ..models.registry import Batch
 from ..models.resolver import ModelChoice, resolve_model
@@ -39,6 +39,7 @@ __all__ = ["Method", "check_samples", "DEFAULT_DILUTIONS", "CHUNK"]
 
 DEFAULT_DILUTIONS = (1, 2, 5, 10, 20, 50, 100)
 CHUNK = 20000
+BOUND_SHARE = 0.99  # a sample whose free analyte share is below this × the standards' gets it named
 
 
 @dataclass(frozen=True)
@@ -81,7 +82,7 @@ class Method:
             temperature=design.temperature, budget_mv=design.budget_mv, envelope=design.envelope,
             analyte_range=design.analyte_range, linear_range=design.linear_range, background=design.background,
             density=design.density, selectivity=design.selectivity, equilibrium=design.equilibrium,
-            complexes=tuple(Complex.from_dict(c) for c in design.complexes) or None,
+            complexes=tuple(Complex.from_dict(c, species) for c in design.complexes) or None,
         )
 
 
@@ -158,6 +159,7 @@ class _Core:
     choice: ModelChoice
     note: str
     lg_std: np.ndarray  # log10 γ of the analyte in the treated standards
+    free_std: float  # median free share of the analyte's total in the treated standards (1 without speciation)
 
 
 def _core(method: Method, values_ions: Mapping[str, tuple[Ion, np.ndarray]], background: str | None) -> _Core:
@@ -187,8 +189,9 @@ def _core(method: Method, values_ions: Mapping[str, tuple[Ion, np.ndarray]], bac
     r = method.volume_ratio
     std = np.array(method.standards)
     c_std = (stoich[:, None] * std[None, :] + r * isa[:, None]) / (1 + r)
-    lg_std = _lg(choice, tuple(ions), c_std, method)[0][k]
-    return _Core(tuple(ions), names, k, stoich, isa, bg_idx, bg.ionic_strength_factor, choice, note, lg_std)
+    lg, _, free = _lg(choice, tuple(ions), c_std, method)
+    return _Core(tuple(ions), names, k, stoich, isa, bg_idx, bg.ionic_strength_factor, choice, note, lg[k],
+                 float(np.median(free)))
 
 
 def _batch_model(method: Method, ions: tuple[Ion, ...], isa: np.ndarray) -> tuple[ModelChoice, str]:
@@ -204,18 +207,23 @@ def _batch_model(method: Method, ions: tuple[Ion, ...], isa: np.ndarray) -> tupl
     return alt, f" (the design's model {info.name} lacks {'; '.join(lacking)} for the batch's ions; using {alt.name})"
 
 
-def _lg(choice: ModelChoice, ions: tuple[Ion, ...], c: np.ndarray, method: Method) -> tuple[np.ndarray, np.ndarray]:
-    """Steps 1–3 of the evaluation path on molar compositions (n, N): stoichiometric log10 γ and I."""
+def _lg(choice: ModelChoice, ions: tuple[Ion, ...], c: np.ndarray, method: Method
+        ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Steps 1–3 of the evaluation path on molar compositions (n, N): stoichiometric log10 γ, I,
+    and the analyte's free share of its total (ones where nothing was speciated)."""
     w = water_per_litre(ions, method.temperature, molar=c, density=method.density)
     b = Batch.of(ions, c / w, method.temperature)
     step = species_step(ions, b.m, b.t, choice.requested, choice.options, choice.fallback, choice=choice,
                         equilibrium=method.equilibrium, species=method.complexes, checks=False)
-    return step.log10_gamma, (step.state.ionic if step.state is not None else b.ionic)
+    free = free_fraction_of(step, method.analyte.name)
+    return (step.log10_gamma, (step.state.ionic if step.state is not None else b.ionic),
+            np.ones(b.m.shape[1]) if free is None else free)
 
 
 def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray
-            ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """γ error (mV), treated analyte (mol/L), treated I (mol/kg) and log10 γ per sample × dilution."""
+            ) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """γ error (mV), treated analyte (mol/L), treated I (mol/kg), log10 γ and the analyte's free share
+    per sample × dilution."""
     n, D = len(vals.ids), dil.size
     valid = vals.valid
     nI = len(core.ions)
@@ -234,11 +242,11 @@ def _errors(core: _Core, method: Method, vals: RowValues, dil: np.ndarray
     r = method.volume_ratio
     c = ((cm[:, :, None] + core.stoich[:, None, None] * an[None, :, None]) / dil[None, None, :]
          + r * core.isa[:, None, None]) / (1 + r)
-    lg, ionic = _lg(core.choice, core.ions, c.reshape(nI, -1), method)
+    lg, ionic, free = _lg(core.choice, core.ions, c.reshape(nI, -1), method)
     lga = lg[core.k].reshape(n, D)
     slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     err = slope * np.maximum(np.abs(lga - core.lg_std.min()), np.abs(lga - core.lg_std.max()))
-    return err, an[:, None] / dil[None, :] / (1 + r), ionic.reshape(n, D), lga
+    return err, an[:, None] / dil[None, :] / (1 + r), ionic.reshape(n, D), lga, free.reshape(n, D)
 
 
 def check_samples(
@@ -329,18 +337,19 @@ def check_samples(
     t_an = np.full((n, dil.size), np.nan)
     t_i = np.full((n, dil.size), np.nan)
     lg = np.full((n, dil.size), np.nan)
+    free = np.full((n, dil.size), np.nan)
     for start in range(0, n, CHUNK):
         sl = slice(start, min(n, start + CHUNK))
         part = RowValues(vals.ids[sl], vals.analyte[sl], vals.ionic[sl], vals.sources[sl],
                          {k: (ion, c[sl]) for k, (ion, c) in vals.ions.items()}, vals.reasons[sl])
-        err[sl], t_an[sl], t_i[sl], lg[sl] = _errors(core, method, part, dil)
+        err[sl], t_an[sl], t_i[sl], lg[sl], free[sl] = _errors(core, method, part, dil)
         if progress:
             _progress(sl.stop, n)
     if progress and n and sys.stderr.isatty():
         sys.stderr.write("\n")
     unit = next(s.unit for s in specs if s.role == "analyte") or "mol/L"
     factor = next(s.factor for s in specs if s.role == "analyte")
-    return _classify(vals, method, dil, cal, err, t_an, t_i, lg, core, unit, factor)
+    return _classify(vals, method, dil, cal, err, t_an, t_i, lg, free, core, unit, factor)
 
 
 def _rules(rule: str | Mapping[str, str] | None) -> dict[str, str]:
@@ -384,8 +393,8 @@ def _duplicates(vals: RowValues) -> None:
 
 
 def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float, float], err: np.ndarray,
-              t_an: np.ndarray, t_i: np.ndarray, lg: np.ndarray, core: _Core, unit: str, factor: float
-              ) -> SampleCheck:
+              t_an: np.ndarray, t_i: np.ndarray, lg: np.ndarray, free: np.ndarray, core: _Core, unit: str,
+              factor: float) -> SampleCheck:
     """Statuses and reasons in words; every number was computed for the whole batch at once."""
     valid = vals.valid
     analyte, i_val = vals.analyte, vals.ionic
@@ -401,7 +410,7 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
     good = in_cal & in_env & in_err & in_lin & valid[:, None]
     first = np.where(good.any(axis=1), good.argmax(axis=1), -1)
     flags = _Flags(analyte, i_val, in_cal, in_env, in_err, in_lin, cal, env_hi, err, method.budget_mv, factor, unit,
-                   dil)
+                   dil, free, core.free_std, method.analyte.name)
     status, reason, chosen = [], [], np.full(len(vals.ids), np.nan)
     for i in range(len(vals.ids)):
         s, why, d = flags.word(i, valid[i], vals.reasons[i], int(first[i]), diluted, i_dil)
@@ -440,6 +449,17 @@ class _Flags:
     fu: float
     unit: str
     dil: np.ndarray
+    free: np.ndarray  # the analyte's free share of its total, sample × dilution
+    free_std: float  # the same in the standards
+    analyte_name: str
+
+    def bound(self, i: int, j: int) -> str:
+        """Words for a sample whose own ions bind the analyte more than the standards' do."""
+        f = float(self.free[i, j])
+        if not f < BOUND_SHARE * self.free_std:
+            return ""
+        return (f" (free {self.analyte_name} {f:.1%} of its total against {self.free_std:.1%} in the standards: "
+                "the sample's ions bind it)")
 
     def word(self, i: int, valid: bool, problem: str | None, j: int, diluted: np.ndarray, i_dil: np.ndarray
              ) -> tuple[str, str, float]:
@@ -452,7 +472,8 @@ class _Flags:
                             f"{self.err[i, 0]:.3g} mV ≤ {self.budget:.3g}"), float(self.dil[0])
         if j > 0:
             return DILUTE, (f"{self.why_not(i, 0)}; dilute ×{self.dil[j]:g}: analyte {diluted[i, j] / fu:.4g} "
-                            f"{self.unit}, I {i_dil[i, j]:.4g} mol/kg, γ error {self.err[i, j]:.3g} mV"), \
+                            f"{self.unit}, I {i_dil[i, j]:.4g} mol/kg, γ error {self.err[i, j]:.3g} mV"
+                            f"{self.bound(i, j)}"), \
                 float(self.dil[j])
         if self.analyte[i] < cal[0]:
             return CANNOT, (f"analyte {self.analyte[i] / fu:.4g} {self.unit} is below the calibrated low end "
@@ -470,7 +491,7 @@ class _Flags:
         if not self.in_env[i, j]:
             parts.append(f"I {self.i_val[i] / d:.4g} mol/kg above the design's {self.env_hi:.4g}")
         if not self.in_err[i, j]:
-            parts.append(f"γ error {self.err[i, j]:.3g} mV above the budget {self.budget:.3g}")
+            parts.append(f"γ error {self.err[i, j]:.3g} mV above the budget {self.budget:.3g}{self.bound(i, j)}")
         if not self.in_lin[i, j]:
             parts.append("treated analyte outside the electrode's linear range")
         prefix = "undiluted" if d == 1 else f"at ×{d:g}"
