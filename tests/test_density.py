@@ -51,7 +51,7 @@ def test_one_model_for_both_directions():
 
 def test_missing_volume_is_an_error_naming_the_ion_and_water_is_a_choice():
     ions = [ia.Ion.parse("Ni^2+"), ia.Ion.parse("Cl-")]
-    with pytest.raises(ia.MissingParameterError, match=r"Cu\^2\+.*density='water'"):
+    with pytest.raises(ia.MissingParameterError, match=r"Ni\^2\+.*density='water'"):
         water_per_litre(ions, 25.0, molal=np.array([0.1, 0.2]))
     w = water_per_litre(ions, 25.0, molal=np.array([0.1, 0.2]), density="water")
     assert float(w) == pytest.approx(ia.water.density(25.0) / 1000.0)
