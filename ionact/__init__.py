@@ -6,6 +6,8 @@ light: the pint unit registry and the parameter tables are created on first use.
 
 __version__ = "0.1.0"
 
+from typing import TYPE_CHECKING, Any
+
 from . import models, water
 from .activity import (
     ActivityCoefficients,
@@ -14,18 +16,6 @@ from .activity import (
     mean_activity_coefficient,
     osmotic_coefficient,
     water_activity,
-)
-from .adjuster import (
-    AdjusterComparison,
-    AdjusterDesign,
-    Budget,
-    Buffer,
-    Check,
-    Electrode,
-    SamplePopulation,
-    StockComponent,
-    compare_adjusters,
-    design_adjuster,
 )
 from .conversion import (
     activity_from_concentration,
@@ -50,9 +40,43 @@ from .errors import (
     strict,
 )
 from .estimates import IonicStrengthEstimate, ionic_strength_from_conductivity, ionic_strength_from_tds
-from .samples import SampleCheck, check_samples
 from .solution import Solution
 from .species import Ion, Salt, register_ion
+
+if TYPE_CHECKING:
+    from .adjuster import (
+        AdjusterComparison,
+        AdjusterDesign,
+        Budget,
+        Buffer,
+        Check,
+        Electrode,
+        SamplePopulation,
+        StockComponent,
+        compare_adjusters,
+        design_adjuster,
+    )
+    from .samples import SampleCheck, check_samples
+
+# the design and batch jobs load on first use, so that ``import ionact`` stays light
+_LAZY = {name: "adjuster" for name in ("AdjusterComparison", "AdjusterDesign", "Budget", "Buffer", "Check",
+                                       "Electrode", "SamplePopulation", "StockComponent", "compare_adjusters",
+                                       "design_adjuster")}
+_LAZY.update({"SampleCheck": "samples", "check_samples": "samples"})
+
+
+def __getattr__(name: str) -> Any:
+    if name in _LAZY:
+        import importlib
+
+        value = getattr(importlib.import_module(f".{_LAZY[name]}", __name__), name)
+        globals()[name] = value
+        return value
+    raise AttributeError(f"module 'ionact' has no attribute {name!r}")
+
+
+def __dir__() -> list[str]:
+    return sorted(set(globals()) | set(_LAZY))
 
 __all__ = [
     "__version__",

@@ -104,8 +104,8 @@ API_CASES = [
      MissingParameterError, "Cs+–Cl-"),
     ("truesdell-jones-missing", lambda: ia.activity_coefficients(ia.Solution.from_salts({"KNO3": 0.1}),
                                                                  "truesdell-jones"), MissingParameterError, "NO3-"),
-    ("density-missing-volume", lambda: ia.Solution.from_salts({"CuCl2": "0.1 mol/L"}), MissingParameterError,
-     "Cu^2+"),
+    ("density-missing-volume", lambda: ia.Solution.from_salts({"NiCl2": "0.1 mol/L"}), MissingParameterError,
+     "Ni^2+"),
     # infeasible designs and saturation
     ("design-infeasible", lambda: _design(samples=ia.SamplePopulation(ionic_strength=(0, 0.5)),
                                           budget=ia.Budget(mv=0.001), solve="stock"), InfeasibleDesignError, "0.001"),

@@ -59,10 +59,10 @@ def test_molar_molal_round_trip():
 
 
 def test_missing_volume_needs_density():
-    with pytest.raises(MissingParameterError, match=r"Cu\^2\+"):
-        ia.Solution.from_salts({"CuCl2": "0.1 mol/L"})
-    s = ia.Solution.from_salts({"CuCl2": "0.1 mol/L"}, density="water")
-    assert s.molality("Cu^2+") == pytest.approx(0.1 / (ia.water.density(25.0) / 1000))
+    with pytest.raises(MissingParameterError, match=r"Ni\^2\+"):
+        ia.Solution.from_salts({"NiCl2": "0.1 mol/L"})
+    s = ia.Solution.from_salts({"NiCl2": "0.1 mol/L"}, density="water")
+    assert s.molality("Ni^2+") == pytest.approx(0.1 / (ia.water.density(25.0) / 1000))
 
 
 def test_batch_equals_rows():
