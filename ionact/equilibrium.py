@@ -33,8 +33,8 @@ import numpy as np
 
 from ._frozen import frozen_map, plain, readonly
 from .constants import LN10, PARAMETER_WINDOW, REFERENCE_TEMPERATURE
-from .errors import ConvergenceError, InputError, UnknownSpeciesError
-from .models.registry import Batch
+from .errors import ConvergenceError, InputError, UnknownSpeciesError, warn_range
+from .models.registry import Batch, Violation
 from .models.resolver import ModelChoice, choice_for, evaluate, resolve_model
 from .species import Ion, Salt, resolve_ion
 from .tables import complex_table, ksp_table
@@ -878,7 +878,10 @@ def _result(net: Network, state: State, shape: tuple[int, ...], t: np.ndarray,
     n_c = len(net.components)
     m, lg = state.molality, state.log10_gamma
     ev = evaluate(state.choice, Batch.of(net.species, m, t), paired=net.paired)
-    notes = list(ev.notes) + [str(v) for v in ev.violations] + net.temperature_notes(t)
+    problems = [str(v) for v in ev.violations] + net.temperature_notes(t)
+    for problem in dict.fromkeys(problems):  # range problems warn (or raise under strict) and stay in the notes
+        warn_range(problem)
+    notes = list(ev.notes) + problems
     status, reason = _statuses(net, state)
     if not shape and not bool(state.converged[0]):
         raise ConvergenceError(reason[0], value=None, field="equilibrium")
@@ -998,7 +1001,8 @@ def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model
     if not checks:
         return Step(ch, lg, state, net, (), ())
     ev = evaluate(ch, Batch.of(net.species, state.molality, t), paired=net.paired)
-    return Step(ch, lg, state, net, ev.notes + tuple(net.temperature_notes(t)), ev.violations)
+    far = tuple(Violation("temperature", n) for n in net.temperature_notes(t))
+    return Step(ch, lg, state, net, ev.notes, ev.violations + far)
 
 
 def free_fraction_of(step: Step, name: str) -> np.ndarray | None:

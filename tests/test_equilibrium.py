@@ -295,3 +295,15 @@ def test_batch_check_names_the_binding_of_stated_aluminium():
     assert freed.status == ("inside", "inside")
     assert bound.status[0] == "inside" and bound.status[1] != "inside"
     assert "the sample's ions bind it" in bound.reason[1] and bound.error_mv[1] > 10 * bare.budget_mv
+
+
+def test_constants_without_enthalpy_warn_beyond_the_window():
+    # log K(T) by van 't Hoff where ΔH is tabulated; the 25 °C value with a warning where it is not
+    sol = ia.Solution({"Na+": 1e-3, "F-": 1e-3, "Al^3+": 1e-5, "Cl-": 3e-5})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", ia.ValidityRangeWarning)
+        ia.speciate(sol.with_temperature(27.0), pH=5.5, model="davies")
+    with pytest.warns(ia.ValidityRangeWarning, match=r"AlF\^2\+.*no tabulated reaction enthalpy"):
+        ia.speciate(sol.with_temperature(50.0), pH=5.5, model="davies")
+    with ia.strict(), pytest.raises(ia.ValidityRangeError, match="enthalpy"):
+        ia.speciate(sol.with_temperature(50.0), pH=5.5, model="davies")
