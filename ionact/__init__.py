@@ -56,6 +56,20 @@ if TYPE_CHECKING:
         compare_adjusters,
         design_adjuster,
     )
+    from .calibration import (
+        AdditionResult,
+        Calibration,
+        DriftCheck,
+        Quantitation,
+        Selectivity,
+        calibrate,
+        double_addition,
+        junction_potential,
+        known_addition,
+        multiple_addition,
+        quantify,
+        selectivity,
+    )
     from .samples import SampleCheck, check_samples
 
 # the design and batch jobs load on first use, so that ``import ionact`` stays light
@@ -63,6 +77,9 @@ _LAZY = {name: "adjuster" for name in ("AdjusterComparison", "AdjusterDesign", "
                                        "Electrode", "SamplePopulation", "StockComponent", "compare_adjusters",
                                        "design_adjuster")}
 _LAZY.update({"SampleCheck": "samples", "check_samples": "samples"})
+_LAZY.update({name: "calibration" for name in ("AdditionResult", "Calibration", "DriftCheck", "Quantitation",
+                                               "Selectivity", "calibrate", "double_addition", "junction_potential",
+                                               "known_addition", "multiple_addition", "quantify", "selectivity")})
 
 
 def __getattr__(name: str) -> Any:
@@ -117,6 +134,18 @@ __all__ = [
     "StockComponent",
     "check_samples",
     "SampleCheck",
+    "calibrate",
+    "quantify",
+    "known_addition",
+    "multiple_addition",
+    "double_addition",
+    "selectivity",
+    "junction_potential",
+    "Calibration",
+    "Quantitation",
+    "DriftCheck",
+    "AdditionResult",
+    "Selectivity",
     "speciate",
     "ph_of",
     "Speciation",

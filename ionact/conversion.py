@@ -35,6 +35,7 @@ from .units import MOLAL, Amount, convert_amount, parse_amount
 
 __all__ = [
     "ActivityConversion",
+    "default_counter_ion",
     "concentration_from_activity",
     "activity_from_concentration",
     "standard_for_activity",
@@ -44,6 +45,12 @@ __all__ = [
 
 MAX_IONIC_STRENGTH = 10.0  # mol/kg: the search for a root stops here
 _TOL = 1e-12
+
+
+def default_counter_ion(ion: Ion, counter_ion: Any = None) -> Ion | None:
+    """The ion an analyte is added with: the one given (of the opposite charge), else Cl- for
+    a cation and Na+ for an anion; None for a neutral species."""
+    return _counter(ion, counter_ion)
 
 
 def _counter(ion: Ion, counter_ion) -> Ion | None:

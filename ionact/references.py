@@ -47,6 +47,24 @@ REFERENCES: dict[str, str] = {
         "constant tables (values from memory)"
     ),
     "common-practice": "common practice in the trade; no single source",
+    "nordstrom1990-mem": (
+        "D. K. Nordstrom, L. N. Plummer, D. Langmuir, E. Busenberg, H. M. May, B. F. Jones, D. L. Parkhurst, "
+        "Revised chemical equilibrium data for major water-mineral reactions and their limitations, in "
+        "Chemical Modeling of Aqueous Systems II, ACS Symp. Ser. 416 (1990) 398-413 (values from memory)"
+    ),
+    "smith-martell-mem": (
+        "R. M. Smith, A. E. Martell, Critical Stability Constants, vols. 1-6, Plenum, New York (1974-1989) "
+        "(values from memory)"
+    ),
+    "kw-enthalpy-mem": "enthalpy of the ionisation of water at 25 °C, critical compilations (value from memory)",
+    "phosphate-enthalpy-mem": "enthalpy of the H2PO4-/HPO4^2- step at 25 °C, critical compilations (from memory)",
+    "carbonate-enthalpy-mem": "enthalpies of the carbonate steps at 25 °C, critical compilations (from memory)",
+    "acetic-enthalpy-mem": "enthalpy of the acetic acid step at 25 °C, critical compilations (from memory)",
+    "ammonium-enthalpy-mem": "enthalpy of the ammonium step at 25 °C, critical compilations (from memory)",
+    "crc-conductivity-mem": (
+        "CRC Handbook of Chemistry and Physics, equivalent conductivity of ions at infinite dilution, "
+        "25 °C (values from memory; multiplied by |z| to give the molar conductivity of the ion)"
+    ),
     "kell1975-mem": (
         "G. S. Kell, Density, thermal expansivity and compressibility of liquid water "
         "from 0 to 150 °C, J. Chem. Eng. Data 20 (1975) 97-105 (coefficients from memory)"

@@ -313,3 +313,9 @@ def acid_table() -> dict[tuple[str, str], tuple[float, tuple[str, ...]]]:
 def ksp_table() -> dict[str, tuple[float, tuple[str, ...]]]:
     """log10 Ksp at 25 °C keyed by salt formula."""
     return {r["salt"]: (float(r["log10_ksp_25C"]), _src(r["source"])) for r in _rows("ksp.csv")}
+
+
+@lru_cache(maxsize=1)
+def conductivity_table() -> dict[str, tuple[float, tuple[str, ...]]]:
+    """Limiting molar conductivity λ° of each ion at 25 °C (S cm² mol⁻¹), keyed by ion name."""
+    return {r["ion"]: (float(r["lambda_s_cm2_per_mol"]), _src(r["source"])) for r in _rows("conductivities.csv")}

@@ -6,6 +6,8 @@ import ionact as ia
 from ionact.references import REFERENCES
 from ionact.tables import (
     acid_table,
+    complex_table,
+    conductivity_table,
     ion_table,
     ksp_table,
     pitzer_binary_table,
@@ -29,6 +31,10 @@ def test_every_source_key_resolves():
         keys |= set(src)
     for _, src in ksp_table().values():
         keys |= set(src)
+    for _, src in conductivity_table().values():
+        keys |= set(src)
+    for rec in complex_table().values():
+        keys |= set(rec.source)
     assert keys, "tables carry sources"
     assert keys <= set(REFERENCES), keys - set(REFERENCES)
 
