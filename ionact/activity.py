@@ -213,10 +213,10 @@ def activity_coefficients(
     name, opts, fallback = choice_for(model, missing=missing, sizes=sizes, davies_coefficient=davies_coefficient,
                                       bdot=bdot, setschenow=setschenow, unsymmetrical=unsymmetrical)
     batch = batch_of(solution)
-    from .equilibrium import _ph, speciation_of, species_step
+    from .equilibrium import held_ph, speciation_of, species_step
 
     step = species_step(batch.ions, batch.m, batch.t, name, opts, fallback, equilibrium=equilibrium,
-                        ph=_ph(pH, solution.shape), species=species)
+                        ph=held_ph(pH, solution.shape), species=species)
     choice = step.choice
     for problem in step.violations:
         warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))

@@ -96,7 +96,9 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
         names = list(matrix.ions)
         ions = [matrix.ion(n) for n in names]
         shape = np.broadcast_shapes(matrix.shape, shape_in)
-        base_m = np.broadcast_to(matrix.molality_array, (len(names), *shape))
+        m_arr = np.asarray(matrix.molality_array).reshape(
+            (len(names),) + (1,) * (len(shape) - len(matrix.shape)) + tuple(matrix.shape))
+        base_m = np.broadcast_to(m_arr, (len(names), *shape))  # a single matrix serves every analyte level
         t = np.broadcast_to(np.asarray(matrix.temperature, dtype=float), shape)
     else:
         names, ions, shape = [], [], tuple(shape_in)
@@ -119,9 +121,9 @@ def _problem(ion: Ion, counter: Ion | None, matrix: Solution | None, shape_in, t
     if counter is not None:
         stoich[names.index(counter.name)] += abs(ion.charge) / abs(counter.charge)
     z = np.array([i.charge for i in ions], dtype=float)
-    from .equilibrium import _ph
+    from .equilibrium import held_ph
 
-    ph = _ph(pH, shape)
+    ph = held_ph(pH, shape)
     return _Problem(tuple(names), tuple(ions), z, base, stoich, k, np.asarray(t, dtype=float).reshape(size), shape,
                     equilibrium, ph, None if species is None else tuple(species))
 

@@ -41,7 +41,7 @@ from .tables import complex_table, ksp_table
 from .water import GAS_CONSTANT, ZERO_CELSIUS
 
 __all__ = ["Complex", "Network", "Speciation", "speciate", "ph_of", "network_for", "equilibrate", "State",
-           "free_fraction_of", "PAIR_KINDS", "MAX_ITERATIONS", "TOLERANCE"]
+           "free_fraction_of", "held_ph", "PAIR_KINDS", "MAX_ITERATIONS", "TOLERANCE"]
 
 PAIR_KINDS = frozenset({"pair"})  # weak ion pairs: left out when the model (Pitzer) already holds them
 MAX_ITERATIONS = 200
@@ -827,7 +827,7 @@ def speciate(solution: Any, *, pH: Any = None, model: str = "auto", temperature:
         raise InputError(f"speciate needs a Solution of totals, got {type(solution).__name__}")
     sol = solution if temperature is None else solution.with_temperature(temperature)
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
-    ph = _ph(pH, sol.shape)
+    ph = held_ph(pH, sol.shape)
     inputs = tuple(sol.ion(n) for n in sol.ions)
     N = sol.size
     m_in = np.asarray(sol.molality_array).reshape(len(inputs), N)
@@ -846,7 +846,8 @@ def speciate(solution: Any, *, pH: Any = None, model: str = "auto", temperature:
     return _result(net, state, sol.shape, t, solids, ph)
 
 
-def _ph(pH: Any, shape: tuple[int, ...]) -> np.ndarray | None:
+def held_ph(pH: Any, shape: tuple[int, ...]) -> np.ndarray | None:
+    """A held pH broadcast over a batch of ``shape`` (flattened), or None; checked to lie in 0–14."""
     if pH is None:
         return None
     if isinstance(pH, bool) or isinstance(pH, str):

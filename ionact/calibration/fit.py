@@ -296,7 +296,7 @@ def _check_series(c: np.ndarray, e: np.ndarray) -> None:
                          "give replicates as one standard with sd_mv", value=float(c[dup[0]]),
                          field="concentrations")
     if not (np.all(d > 0) or np.all(d < 0)):
-        k = int(np.flatnonzero(np.sign(d) != np.sign(d[0]))[0]) + 1
+        k = int(np.flatnonzero(np.sign(d) != np.sign(d[0]))[0])  # d[k] turns against d[0]: c[k + 1] breaks it
         raise InputError(f"standards must be listed in increasing or decreasing concentration: {c[k + 1]:g} mol/L "
                          f"at position {k + 2} breaks the order", value=float(c[k + 1]), field="concentrations")
 
