@@ -60,10 +60,12 @@ if TYPE_CHECKING:
         AdditionResult,
         Calibration,
         DriftCheck,
+        ErrorBudget,
         Quantitation,
         Selectivity,
         calibrate,
         double_addition,
+        error_budget,
         junction_potential,
         known_addition,
         multiple_addition,
@@ -79,6 +81,7 @@ _LAZY = {name: "adjuster" for name in ("AdjusterComparison", "AdjusterDesign", "
 _LAZY.update({"SampleCheck": "samples", "check_samples": "samples"})
 _LAZY.update({name: "calibration" for name in ("AdditionResult", "Calibration", "DriftCheck", "Quantitation",
                                                "Selectivity", "calibrate", "double_addition", "junction_potential",
+                                               "ErrorBudget", "error_budget",
                                                "known_addition", "multiple_addition", "quantify", "selectivity")})
 
 
@@ -141,6 +144,8 @@ __all__ = [
     "double_addition",
     "selectivity",
     "junction_potential",
+    "error_budget",
+    "ErrorBudget",
     "Calibration",
     "Quantitation",
     "DriftCheck",

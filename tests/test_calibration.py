@@ -296,3 +296,53 @@ def test_henderson_concentration_junction_of_one_salt():
 def test_junction_needs_every_conductivity():
     with pytest.raises(ia.MissingParameterError, match="La"):
         ia.junction_potential(ia.Solution.from_salts({"LaCl3": 0.01}), ia.Solution.from_salts({"KCl": 0.1}))
+
+
+def _nitrate_day():
+    from ionact.method import load_method
+
+    design = ia.design_adjuster(**load_method("example:nitrate_irrigation"))
+    c = np.array([1e-5, 3e-5, 1e-4, 3e-4, 1e-3, 3e-3])
+    meas = measurement_for("NO3-", design=design)
+    rng = np.random.default_rng(1)
+    cal = ia.calibrate("NO3-", c, 200 - 56.8 * np.log10(meas.activity(c)) + rng.normal(0, 0.3, c.size),
+                       design=design)
+    return design, cal, meas
+
+
+def test_error_budget_terms_and_their_combination():
+    design, cal, meas = _nitrate_day()
+    e = float(200 - 56.8 * np.log10(meas.activity(np.array([2e-4])))[0])
+    b = ia.error_budget(cal, e, design=design, sample=ia.Solution.from_salts({"NaCl": 0.02}),
+                        measurement_temperature=22.0, interferents={"Cl-": (0.01, 4e-3)})
+    names = [t.name for t in b.terms]
+    assert names == ["calibration", "residual γ mismatch", "model choice", "temperature", "interference",
+                     "liquid junction"]
+    by = {t.name: t for t in b.terms}
+    # a bound b enters as b/√3 (GUM 4.3.7); the design's worst error is the design's own number
+    assert by["residual γ mismatch"].value_mv == design.worst_error_mv
+    assert by["residual γ mismatch"].u_mv == pytest.approx(design.worst_error_mv / math.sqrt(3))
+    # the interference term is the Nikolsky–Eisenman bias at the read activity, computed by that function
+    bias = ia.nikolsky_eisenman("NO3-", float(ia.quantify(cal, [e]).activity[0]), {"Cl-": (0.01, 4e-3)}).bias_mv
+    assert by["interference"].value_mv == pytest.approx(bias)
+    u = [t.u_mv for t in b.terms if math.isfinite(t.u_mv)]
+    assert b.combined_mv == pytest.approx(math.sqrt(sum(x * x for x in u)))
+    assert b.expanded_mv == pytest.approx(2 * b.combined_mv)
+    assert "GUM" in b.statement and "rectangular" in b.statement
+
+
+def test_error_budget_lists_what_it_cannot_assess():
+    _, cal, meas = _nitrate_day()
+    e = float(200 - 56.8 * np.log10(meas.activity(np.array([2e-4])))[0])
+    b = ia.error_budget(cal, e)
+    missing = {t.name for t in b.terms if math.isnan(t.u_mv)}
+    assert missing == {"residual γ mismatch", "interference"}
+
+
+def test_batch_check_takes_its_calibrated_range_from_a_calibration():
+    design, cal, _ = _nitrate_day()
+    r = ia.check_samples({"analyte": [2e-4], "ionic_strength": [0.01]}, design, calibration_range=cal)
+    assert r.calibration_range == pytest.approx(cal.linear_range)
+    other = ia.calibrate("F-", C_STD[3:], _potentials(C_STD[3:]))
+    with pytest.raises(ia.InputError, match="the calibration is for F-"):
+        ia.check_samples({"analyte": [2e-4], "ionic_strength": [0.01]}, design, calibration_range=other)

@@ -74,9 +74,10 @@ class Measurement(Record):
 
     @property
     def ion(self) -> Ion:
-        return self._ion(self.analyte)
+        return self.ion_of(self.analyte)
 
-    def _ion(self, name: str) -> Ion:
+    def ion_of(self, name: str) -> Ion:
+        """An ion of the measurement by name (the design's own ions included)."""
         if name in self.custom_ions:
             return Ion.from_dict(self.custom_ions[name])
         return resolve_ion(name)
@@ -86,7 +87,7 @@ class Measurement(Record):
 
         if not self.matrix:
             return None
-        amounts: dict[Any, float] = {self._ion(k): v for k, v in self.matrix.items()}
+        amounts: dict[Any, float] = {self.ion_of(k): v for k, v in self.matrix.items()}
         return Solution(amounts, self.temperature, density=self.density, charge_tolerance=1e-3)
 
     def activity(self, concentration: np.ndarray) -> np.ndarray:
