@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import math
 import os
 import sys
 import warnings
@@ -237,6 +238,147 @@ def _read_design(path: str) -> Any:
         raise IonactError(f"design {path} is not valid JSON ({str(exc)[:200]})") from None
 
 
+def _design_arg(args: argparse.Namespace) -> Any:
+    """A design from --design DESIGN.json or --method METHOD.toml (or example:NAME), or None."""
+    if getattr(args, "design", None) and getattr(args, "method", None):
+        raise IonactError("give --design or --method, not both")
+    if getattr(args, "design", None):
+        from .adjuster import AdjusterDesign
+
+        return AdjusterDesign.from_dict(_read_design(args.design))
+    if getattr(args, "method", None):
+        from .adjuster import design_adjuster
+        from .method import load_method
+
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore")  # the design's own range notes belong to 'ionact design'
+            return design_adjuster(**load_method(args.method))
+    return None
+
+
+def _read_calibration(path: str) -> Any:
+    from .calibration import Calibration
+
+    data = _read_design(path)
+    if not isinstance(data, dict) or data.get("format") != "ionact-calibration":
+        raise IonactError(f"{path} is not an ionact calibration (write one with 'ionact calibrate --out')")
+    return Calibration.from_dict({k: v for k, v in data.items() if k not in ("format", "version")})
+
+
+def cmd_calibrate(args: argparse.Namespace) -> int:
+    from .calibration import calibrate
+    from .calibration.files import read_standards_csv
+    from .samples import atomic_output
+    from .samples.output import atomic_binary
+    from .species import resolve_ion
+
+    _check_figure_path(args.plot)
+    design = _design_arg(args)
+    analyte = resolve_ion(args.analyte) if args.analyte else (resolve_ion(design.analyte) if design else None)
+    if analyte is None:
+        raise IonactError("give --analyte (or a --design/--method, whose analyte is used)")
+    data = read_standards_csv(args.standards, analyte, delimiter=args.delimiter, decimal_comma=args.decimal_comma)
+    window = (90.0, 105.0) if args.slope_window is None else tuple(float(x) for x in args.slope_window)
+    cal = calibrate(analyte, data["concentrations"], data["potentials_mv"], sd_mv=data["sd_mv"],
+                    temperature=args.temperature, design=design, model=args.model, fit=args.fit,
+                    slope_window=window, linearity_mv=args.linearity)
+    payload = {"format": "ionact-calibration", "version": 1, **cal.to_dict()}
+    if args.plot:
+        with atomic_binary(args.plot) as tmp:
+            cal.plot().savefig(tmp, format=Path(args.plot).suffix[1:].lower(), dpi=110)
+    if args.out:
+        with atomic_output(args.out, inputs=(args.standards,)) as fh:
+            fh.write(_json_text(payload) + "\n")
+    if args.json:
+        print(_json_text(payload))
+    else:
+        print(cal.report())
+    return EXIT_FAILED if cal.status == "fail" else EXIT_OK
+
+
+def cmd_quantify(args: argparse.Namespace) -> int:
+    import csv
+
+    from .calibration import DriftCheck, quantify
+    from .calibration.files import check_standard, quantity_rows, read_samples_for_quantity
+    from .samples import atomic_output
+    from .samples.output import printable, safe_cell
+    from .units import MOLAR, convert_amount
+
+    cal = _read_calibration(args.calibration)
+    design = _design_arg(args)
+    if design is not None and (design.analyte != cal.analyte
+                               or abs(1 + design.volume_ratio - cal.measurement.dilution) > 1e-12):
+        raise IonactError("the calibration was not made with this design (analyte or mixing ratio differ)")
+    ion = cal.measurement.ion
+    r = read_samples_for_quantity(args.samples, ion, delimiter=args.delimiter, decimal_comma=args.decimal_comma)
+    chk = check_standard(r)
+    samples = ~r.is_check
+    check = None if chk is None else DriftCheck(chk[0], chk[1], chk[2])
+    times = None if r.times is None else r.times[samples]
+    q = quantify(cal, r.potentials[samples], times=times if check is not None else None, check=check,
+                 correct_drift=args.correct_drift, drift_limit_mv=args.drift_limit, coverage=args.coverage)
+    unit = args.unit or "mol/L"
+    factor = float(convert_amount(1.0, MOLAR, unit, ion))
+    header, rows = quantity_rows(q, r, unit, factor)
+    if args.out:
+        target = sys.stdout if args.out == "-" else None
+        if target is not None:
+            w = csv.writer(target)
+            w.writerow(header)
+            w.writerows([[safe_cell(v) for v in row] for row in rows])
+        else:
+            with atomic_output(args.out, inputs=(args.samples,)) as fh:
+                w = csv.writer(fh)
+                w.writerow(header)
+                w.writerows([[safe_cell(v) for v in row] for row in rows])
+    if args.json:
+        print(_json_text({"format": "ionact-quantitation", "version": 1, "unit": unit, "columns": header,
+                          "rows": rows, "coverage": q.coverage}))
+    elif args.out != "-":
+        counts: dict[str, int] = {}
+        for row in rows:
+            counts[row[7]] = counts.get(row[7], 0) + 1
+        print(f"{len(rows)} rows; " + ", ".join(f"{v} {k}" for k, v in counts.items()))
+        for row in rows[: args.limit]:
+            conc = "" if math.isnan(row[4]) else f"{row[4]:.4g} ({row[5]:.3g}–{row[6]:.3g}) {unit}"
+            mv = f"{row[1]:>9.2f} mV" if math.isfinite(row[1]) else f"{'—':>9}   "
+            print(f"  {printable(str(row[0]))[:20]:<20} {mv}  {conc:<36} {row[7]}")
+    bad = sum(1 for row in rows if row[7] not in ("ok", "check standard"))
+    return EXIT_FAILED if bad else EXIT_OK
+
+
+def cmd_addition(args: argparse.Namespace) -> int:
+    from .calibration import double_addition, known_addition, multiple_addition
+    from .calibration.files import read_additions_csv
+
+    cal = _read_calibration(args.calibration) if args.calibration else None
+    v, e = read_additions_csv(args.additions, delimiter=args.delimiter, decimal_comma=args.decimal_comma)
+    if v.size < 2 or v[0] != 0:
+        raise IonactError("an additions file starts with the sample alone (volume 0) and has at least one spike")
+    method = args.method or ("known" if v.size == 2 else "multiple")
+    common = dict(sample_volume=args.sample_volume, spike_concentration=args.spike_concentration,
+                  temperature=args.temperature, model=args.model)
+    if method == "known":
+        if v.size != 2:
+            raise IonactError(f"known addition takes two rows (the sample and one spike), got {v.size}")
+        res = known_addition(args.analyte, spike_volume=float(v[1]), delta_mv=float(e[1] - e[0]),
+                             slope_mv=args.slope, calibration=cal, **common)
+    elif method == "double":
+        if v.size != 3 or abs(v[2] - 2 * v[1]) > 1e-9 * v[2]:
+            raise IonactError("double known addition takes three rows: the sample, one spike, and a second equal "
+                              "spike (volumes 0, V, 2V)")
+        res = double_addition(args.analyte, spike_volume=float(v[1]), delta_mv=(e[1] - e[0], e[2] - e[0]), **common)
+    else:
+        res = multiple_addition(args.analyte, spike_volumes=v, potentials_mv=e, slope_mv=args.slope,
+                                calibration=cal, **common)
+    if args.json:
+        print(_json_text({"format": "ionact-addition", "version": 1, **res.to_dict()}))
+    else:
+        print(res.report(args.unit or "mol/L"))
+    return EXIT_OK
+
+
 def _no_constants(name: str) -> None:
     raise ValueError(f"{name} is not allowed in strict JSON")
 
@@ -406,14 +548,77 @@ def build_parser() -> argparse.ArgumentParser:
     ch.add_argument("--json", action="store_true", help="print the results as strict JSON")
     ch.set_defaults(func=cmd_check)
 
+    cal = job("calibrate", "fit an electrode calibration from a standards file",
+              "ionact calibrate standards.csv --analyte F- --method example:fluoride_buffered --out cal.json "
+              "--plot cal.png")
+    cal.add_argument("standards", help="STANDARDS.csv: 'concentration [unit]', 'potential [mV]', optional 'sd [mV]'")
+    cal.add_argument("--analyte", help="the measured ion (default: the design's)")
+    cal.add_argument("-t", "--temperature", default="25", help="°C of the measurement (default 25)")
+    cal.add_argument("--design", help="DESIGN.json: the standards were mixed with this adjuster")
+    cal.add_argument("--method", help="METHOD.toml or example:NAME: the same, designed from a method file")
+    cal.add_argument("-m", "--model", help="activity model (default: the design's, else auto)")
+    cal.add_argument("--fit", choices=["auto", "nernst", "nikolsky"], default="auto", help="calibration function")
+    cal.add_argument("--slope-window", nargs=2, metavar=("LOW", "HIGH"),
+                     help="accepted slope, %% of Nernstian (default 90 105, common practice)")
+    cal.add_argument("--linearity", type=float, default=1.0,
+                     help="largest residual in the linear range, mV (default 1)")
+    cal.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
+    cal.add_argument("--decimal-comma", action="store_true", default=None, help="read decimal commas")
+    cal.add_argument("--out", help="write the calibration (JSON) here, for 'ionact quantify'")
+    cal.add_argument("--plot", help="write the calibration figure here (.png, .pdf or .svg)")
+    cal.add_argument("--json", action="store_true", help="print the calibration as strict JSON")
+    cal.set_defaults(func=cmd_calibrate)
+
+    qu = job("quantify", "sample potentials to concentrations with their intervals, every row kept",
+             "ionact quantify samples.csv --calibration cal.json --unit mg/L --out report.csv")
+    qu.add_argument("samples", help="SAMPLES.csv: 'sample_id', 'potential [mV]', optional 'time [min]', 'check [unit]'")
+    qu.add_argument("--calibration", required=True, help="CAL.json written by 'ionact calibrate --out'")
+    qu.add_argument("--design", help="DESIGN.json: check that the calibration was made with it")
+    qu.add_argument("--method", help="METHOD.toml or example:NAME: the same check against a method file")
+    qu.add_argument("--unit", help="report concentrations in this unit (default mol/L)")
+    qu.add_argument("--coverage", type=float, default=0.95, help="of the intervals (default 0.95)")
+    qu.add_argument("--correct-drift", action="store_true", help="subtract the check standard's interpolated drift")
+    qu.add_argument("--drift-limit", type=float, default=2.0, help="largest acceptable drift, mV (default 2)")
+    qu.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
+    qu.add_argument("--decimal-comma", action="store_true", default=None, help="read decimal commas")
+    qu.add_argument("--out", help="write the report CSV here ('-' for standard output)")
+    qu.add_argument("--limit", type=int, default=50, help="rows shown on the screen (default 50)")
+    qu.add_argument("--json", action="store_true", help="print the rows as strict JSON")
+    qu.set_defaults(func=cmd_quantify)
+
+    ad = job("addition", "standard addition: known, double known, or multiple (Gran)",
+             "ionact addition additions.csv --analyte F- --sample-volume 50 --spike-concentration '100 mg/L'")
+    ad.add_argument("additions", help="ADDITIONS.csv: 'volume [mL]' (cumulative, first row 0), 'potential [mV]'")
+    ad.add_argument("--analyte", required=True, help="the measured ion")
+    ad.add_argument("--sample-volume", required=True, help="mL, or a unit string")
+    ad.add_argument("--spike-concentration", required=True, help="mol/L, or a unit string ('100 mg/L')")
+    ad.add_argument("--method", choices=["known", "double", "multiple"],
+                    help="default: known for two rows, multiple for more")
+    ad.add_argument("--slope", help="electrode slope, mV/decade (default: the calibration's, else Nernstian)")
+    ad.add_argument("--calibration", help="CAL.json: take the slope and its uncertainty from it")
+    ad.add_argument("-t", "--temperature", default="25", help="°C (default 25)")
+    ad.add_argument("-m", "--model", help="activity model (default auto)")
+    ad.add_argument("--unit", help="report the concentration in this unit (default mol/L)")
+    ad.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
+    ad.add_argument("--decimal-comma", action="store_true", default=None, help="read decimal commas")
+    ad.add_argument("--json", action="store_true", help="print the result as strict JSON")
+    ad.set_defaults(func=cmd_addition)
+
     d = job("demo", "run the built-in invented scenario", "ionact demo")
     d.set_defaults(func=cmd_demo)
     return p
 
 
+_SHOWN: set[str] = set()
+
+
 def _one_line_warnings(message: Warning | str, category: type[Warning], filename: str, lineno: int,
                        file: Any = None, line: str | None = None) -> None:
-    print(f"ionact: {category.__name__}: {message}", file=sys.stderr if file is None else file)
+    text = f"ionact: {category.__name__}: {message}"
+    if text in _SHOWN:  # one job may meet the same range problem in several steps: say it once
+        return
+    _SHOWN.add(text)
+    print(text, file=sys.stderr if file is None else file)
 
 
 def _error(argv: Sequence[str], command: str, exc: BaseException) -> None:

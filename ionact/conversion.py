@@ -283,7 +283,7 @@ def _final(ion, counter, p, m_an, choice: ModelChoice, density=None) -> Activity
 def concentration_from_activity(analyte, activity, *, matrix: Solution | None = None, counter_ion=None,
                                 model: str = "auto", temperature=None, missing: str = "error",
                                 equilibrium: bool | None = None, pH: Any = None, species: Any = None,
-                                **model_options) -> ActivityConversion:
+                                density: Any = None, **model_options) -> ActivityConversion:
     """The analyte concentration that gives a measured activity in a matrix.
 
     Parameters
@@ -361,7 +361,7 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
             f"no concentration of {an.name} gives activity {float(np.exp(ln_a[rows[0]])):.6g}{where} under model "
             f"{choice.name}: the largest reachable activity is {best:.4g} (up to I = {MAX_IONIC_STRENGTH:g} mol/kg)"
         )
-    return _final(an, counter, p, np.exp(x), choice)
+    return _final(an, counter, p, np.exp(x), choice, density)
 
 
 def activity_from_concentration(analyte, amount, *, matrix: Solution | None = None, counter_ion=None,
@@ -406,7 +406,7 @@ def activity_from_concentration(analyte, amount, *, matrix: Solution | None = No
     name, opts, fallback = choice_for(model, missing=missing, **model_options)
     p = _problem(an, counter, matrix, value.shape, temperature, equilibrium, pH, species)
     m_an = np.broadcast_to(value, p.shape).reshape(-1).astype(float)
-    return _final(an, counter, p, m_an, _choose(p, name, opts, fallback, m_an))
+    return _final(an, counter, p, m_an, _choose(p, name, opts, fallback, m_an), density)
 
 
 def activity_from_px(px):

@@ -77,7 +77,7 @@ def test_quantify_keeps_every_row_with_its_status():
     cal = ia.calibrate("F-", C_STD, _potentials(C_STD, B))
     e = _potentials(np.array([1e-4, 1e-3]), B)
     q = ia.quantify(cal, [e[0], float("nan"), e[1], E0 + S * math.log10(B) + 30.0, E0 + S * -1.5])
-    assert q.status == ("ok", "invalid input", "ok", "below the detection limit", "outside the linear range")
+    assert q.status == ("ok", "invalid input", "ok", "below the detection limit", "outside the calibrated range")
     assert q.concentration[0] == pytest.approx(1e-4, rel=1e-9) and q.concentration[2] == pytest.approx(1e-3, rel=1e-9)
     assert len(q) == 5 and math.isnan(q.concentration[1])
     mg, _ = q.in_unit("mg/L")

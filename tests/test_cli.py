@@ -191,3 +191,59 @@ def test_speciate_solves_ph_and_screens_solids(capsys):
 def test_speciate_bad_input(capsys, argv, needle):
     rc, _, err = run(capsys, *argv)
     assert rc == 2 and needle in err and len(err.strip().splitlines()) == 1
+
+
+def _example(name):
+    from importlib import resources
+
+    return str(resources.files("ionact").joinpath("examples", name))
+
+
+def test_calibrate_quantify_addition_commands(capsys, tmp_path):
+    cal = tmp_path / "cal.json"
+    fig = tmp_path / "cal.png"
+    rc, out, _ = run(capsys, "calibrate", _example("fluoride_standards.csv"), "--method", "example:fluoride_buffered",
+                     "--out", str(cal), "--plot", str(fig))
+    assert rc == 0 and "% of Nernstian" in out and "detection limit (IUPAC)" in out
+    assert cal.exists() and fig.stat().st_size > 1000
+    data = json.loads(cal.read_text())
+    assert data["format"] == "ionact-calibration" and data["fit"] == "nikolsky"
+    assert f"{data['slope_mv']:.2f} mV/decade" in out  # the printed slope is the stored one
+    report = tmp_path / "report.csv"
+    rc, out, _ = run(capsys, "quantify", _example("fluoride_samples.csv"), "--calibration", str(cal), "--unit",
+                     "mg/L", "--out", str(report))
+    assert rc == 1  # some rows are not reportable; every row is still there
+    import csv
+
+    rows = list(csv.DictReader(report.open()))
+    assert [r["sample_id"] for r in rows][:3] == ["check A", "spring 01", "spring 02"] and len(rows) == 12
+    by = {r["sample_id"]: r for r in rows}
+    assert by["well 08"]["status"] == "invalid input" and by["well 06"]["status"] == "outside the calibrated range"
+    assert by["check B"]["status"] == "check standard"
+    assert 1.2 < float(by["spring 02"]["concentration [mg/L]"]) < 1.5
+    rc, out, _ = run(capsys, "addition", _example("fluoride_additions.csv"), "--analyte", "F-", "--sample-volume",
+                     "25", "--spike-concentration", "10 mg/L", "--unit", "mg/L", "--json")
+    res = json.loads(out)
+    assert rc == 0 and res["method"] == "multiple addition (Gran)"
+    assert 0.28 / 18998.4 < res["concentration"] < 0.33 / 18998.4  # the invented sample held 0.3 mg/L
+
+
+def test_quantify_refuses_a_calibration_of_another_design(capsys, tmp_path):
+    cal = tmp_path / "cal.json"
+    run(capsys, "calibrate", _example("fluoride_standards.csv"), "--analyte", "F-", "--out", str(cal))
+    rc, _, err = run(capsys, "quantify", _example("fluoride_samples.csv"), "--calibration", str(cal), "--method",
+                     "example:fluoride_buffered")
+    assert rc == 2 and "not made with this design" in err
+
+
+@pytest.mark.parametrize("content,needle", [
+    ("concentration [mg/L],potential [mV]\n0.1,150\n", "at least two standards"),
+    ("concentration [mg/L],potential [mV]\n0.1,150\n0.2,abc\n", "line 3"),
+    ("concentration [mg/kg],potential [mV]\n0.1,150\n0.2,140\n", "per-litre"),
+    ("conc,potential [mV]\n0.1,150\n0.2,140\n", "concentration"),
+])
+def test_calibrate_bad_files_are_named(capsys, tmp_path, content, needle):
+    f = tmp_path / "s.csv"
+    f.write_text(content)
+    rc, _, err = run(capsys, "calibrate", str(f), "--analyte", "F-")
+    assert rc == 2 and needle in err

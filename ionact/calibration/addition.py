@@ -248,8 +248,8 @@ def double_addition(analyte: Any, *, sample_volume: Any, spike_volume: Any, spik
                           notes=(f"volume-corrected; activities by {meas.model}",))
 
 
-def multiple_addition(analyte: Any, *, sample_volume: Any, spike_volumes: Sequence[Any], spike_concentration: Any,
-                      potentials_mv: Sequence[Any], slope_mv: Any = None, calibration: Calibration | None = None,
+def multiple_addition(analyte: Any, *, sample_volume: Any, spike_volumes: Any, spike_concentration: Any,
+                      potentials_mv: Any, slope_mv: Any = None, calibration: Calibration | None = None,
                       matrix: Any = None, temperature: Any = 25.0, model: str | None = None,
                       counter_ion: Any = None) -> AdditionResult:
     """Multiple standard additions evaluated by the Gran linearisation, activity-corrected.

@@ -108,7 +108,7 @@ class Measurement(Record):
         a = np.asarray(activity, dtype=float)
         r = concentration_from_activity(self.ion, a, matrix=self._matrix(), counter_ion=self.counter_ion,
                                         model=self.model, temperature=self.temperature,
-                                        equilibrium=self.equilibrium)
+                                        equilibrium=self.equilibrium, density=self.density)
         return np.asarray(r.concentration("mol/L"), dtype=float) * self.dilution
 
 

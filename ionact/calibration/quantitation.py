@@ -27,7 +27,7 @@ from .fit import Calibration
 __all__ = ["Quantitation", "DriftCheck", "quantify", "QUANTITY_STATUSES", "DEFAULT_DRIFT_LIMIT_MV",
            "DEFAULT_COVERAGE"]
 
-OK, OUTSIDE, BELOW, DRIFT, INVALID = ("ok", "outside the linear range", "below the detection limit",
+OK, OUTSIDE, BELOW, DRIFT, INVALID = ("ok", "outside the calibrated range", "below the detection limit",
                                       "drift beyond the limit", "invalid input")
 QUANTITY_STATUSES = (OK, OUTSIDE, BELOW, DRIFT, INVALID)
 DEFAULT_DRIFT_LIMIT_MV = 2.0  # largest offset of a check standard from its calibrated potential (common practice)
@@ -214,7 +214,8 @@ def _log_activity_sd(cal: Calibration, e: np.ndarray) -> tuple[np.ndarray, np.nd
 
 def _statuses(cal: Calibration, e: np.ndarray, conc: np.ndarray, drift: np.ndarray, valid: np.ndarray,
               below: np.ndarray, limit: float) -> tuple[list[str], list[str]]:
-    lo, hi = cal.linear_range
+    lo, hi = float(cal.concentrations.min()), float(cal.concentrations.max())
+    lin = cal.linear_range[0]
     status = np.full(e.size, OK, dtype=object)
     reason = np.full(e.size, "", dtype=object)
     outside = valid & ~below & ((conc < lo * (1 - 1e-9)) | (conc > hi * (1 + 1e-9)))
@@ -229,8 +230,10 @@ def _statuses(cal: Calibration, e: np.ndarray, conc: np.ndarray, drift: np.ndarr
         elif status[i] == DRIFT:
             reason[i] = f"the electrode had drifted {drift[i]:+.2f} mV from its calibration (limit ±{limit:g} mV)"
         else:
-            reason[i] = (f"{conc[i]:.4g} mol/L is outside the linear range {lo:.3g}–{hi:.3g} mol/L: dilute or "
-                         "recalibrate")
+            reason[i] = (f"{conc[i]:.4g} mol/L is outside the standards' range {lo:.3g}–{hi:.3g} mol/L: "
+                         + ("dilute" if conc[i] > hi else "use lower standards or standard addition"))
     ok = status == OK
+    curved = ok & (conc < lin * (1 - 1e-9))
     reason[ok] = "within the linear range"
+    reason[curved] = "in the curved low end of the calibration (read from the fitted curve)"
     return list(status), list(reason)
