@@ -401,7 +401,11 @@ def cmd_check(args: argparse.Namespace) -> int:
     _check_figure_path(args.plot)
     dil = _dilutions(args.dilutions)  # options first: a typo is reported before any file is read
     design = _read_design(args.design)
-    cal = tuple(args.calibration) if args.calibration else None
+    if args.calibration and args.calibration_file:
+        raise IonactError("give --calibration LOW HIGH or --calibration-file CAL.json, not both")
+    cal: Any = tuple(args.calibration) if args.calibration else None
+    if args.calibration_file:
+        cal = _read_calibration(args.calibration_file)
     to_stdout = args.out == "-"
     summary = check_csv(args.samples, design, out=None if to_stdout else args.out, plot=args.plot,
                         calibration_range=cal, dilutions=dil, delimiter=args.delimiter,
@@ -539,6 +543,9 @@ def build_parser() -> argparse.ArgumentParser:
     ch.add_argument("--plot", help="write the batch figure here (.png, .pdf or .svg)")
     ch.add_argument("--calibration", nargs=2, metavar=("LOW", "HIGH"), help="calibrated range, e.g. "
                     "'0.5 mg/L as N' '30 mg/L as N' (default: the design's standards)")
+    ch.add_argument("--calibration-file", metavar="CAL.json",
+                    help="take the calibrated range (lowest to highest standard) from a calibration written by "
+                    "'ionact calibrate --out'")
     ch.add_argument("--dilutions", help="allowed dilution factors, comma-separated (default 1,2,5,10,20,50,100)")
     ch.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
     ch.add_argument("--decimal-comma", action="store_true", default=None,

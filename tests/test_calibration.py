@@ -342,7 +342,7 @@ def test_error_budget_lists_what_it_cannot_assess():
 def test_batch_check_takes_its_calibrated_range_from_a_calibration():
     design, cal, _ = _nitrate_day()
     r = ia.check_samples({"analyte": [2e-4], "ionic_strength": [0.01]}, design, calibration_range=cal)
-    assert r.calibration_range == pytest.approx(cal.linear_range)
+    assert r.calibration_range == pytest.approx(cal.calibrated_range)
     other = ia.calibrate("F-", C_STD[3:], _potentials(C_STD[3:]))
     with pytest.raises(ia.InputError, match="the calibration is for F-"):
         ia.check_samples({"analyte": [2e-4], "ionic_strength": [0.01]}, design, calibration_range=other)

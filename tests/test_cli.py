@@ -247,3 +247,15 @@ def test_calibrate_bad_files_are_named(capsys, tmp_path, content, needle):
     f.write_text(content)
     rc, _, err = run(capsys, "calibrate", str(f), "--analyte", "F-")
     assert rc == 2 and needle in err
+
+
+def test_check_takes_its_range_from_a_calibration_file(capsys, tmp_path):
+    cal, design = tmp_path / "cal.json", tmp_path / "design.json"
+    run(capsys, "calibrate", _example("fluoride_standards.csv"), "--method", "example:fluoride_buffered",
+        "--out", str(cal))
+    run(capsys, "design", "--example", "fluoride_buffered", "--out", str(design))
+    batch = tmp_path / "b.csv"
+    batch.write_text("sample_id,analyte [mg/L],conductivity [uS/cm]\nA,0.4,300\nB,0.01,500\n")
+    rc, out, _ = run(capsys, "check", str(batch), "--design", str(design), "--calibration-file", str(cal), "--json")
+    data = json.loads(out)
+    assert data["calibration_range_mol_per_l"] == pytest.approx([0.05 / 18998.4032, 5 / 18998.4032], rel=1e-6)

@@ -126,6 +126,12 @@ class Calibration(Record):
         return self.measurement.analyte
 
     @property
+    def calibrated_range(self) -> tuple[float, float]:
+        """The lowest and highest standard (mol/L as prepared): where results are reported
+        (from the fitted curve, which may bend below the linear range)."""
+        return float(self.concentrations.min()), float(self.concentrations.max())
+
+    @property
     def parameters(self) -> np.ndarray:
         """(E⁰, S) or (E⁰, S, log10 b)."""
         if self.fit == "nikolsky":

@@ -214,7 +214,7 @@ def _log_activity_sd(cal: Calibration, e: np.ndarray) -> tuple[np.ndarray, np.nd
 
 def _statuses(cal: Calibration, e: np.ndarray, conc: np.ndarray, drift: np.ndarray, valid: np.ndarray,
               below: np.ndarray, limit: float) -> tuple[list[str], list[str]]:
-    lo, hi = float(cal.concentrations.min()), float(cal.concentrations.max())
+    lo, hi = cal.calibrated_range
     lin = cal.linear_range[0]
     status = np.full(e.size, OK, dtype=object)
     reason = np.full(e.size, "", dtype=object)

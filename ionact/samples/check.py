@@ -131,11 +131,11 @@ def _dilutions(dilutions: Any) -> np.ndarray:
 def _calibration(calibration_range: Any, method: Method) -> tuple[float, float]:
     if calibration_range is None:
         return float(min(method.standards)), float(max(method.standards))
-    if hasattr(calibration_range, "linear_range") and hasattr(calibration_range, "analyte"):
+    if hasattr(calibration_range, "calibrated_range") and hasattr(calibration_range, "analyte"):
         if calibration_range.analyte != method.analyte.name:  # a calibration result, for this analyte only
             raise InputError(f"the calibration is for {calibration_range.analyte}, the design for "
                              f"{method.analyte.name}", field="calibration_range")
-        lo_hi = calibration_range.linear_range
+        lo_hi = calibration_range.calibrated_range  # the same range quantify reports in
         return float(lo_hi[0]), float(lo_hi[1])
     if isinstance(calibration_range, str) or not isinstance(calibration_range, Sequence) or len(calibration_range) != 2:
         raise InputError(f"calibration_range {calibration_range!r} must be a pair (low, high)")
