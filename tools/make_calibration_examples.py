@@ -3,7 +3,8 @@
 The fluoride electrode of the invented Brightwater scenario: standards mixed 1:1 with the
 adjuster of the example method ``fluoride_buffered``, an electrode with E0 = -180 mV, a
 slope of -58.4 mV/decade and a background activity of 4e-7 (Nikolsky–Eisenman), read with
-0.15 mV of seeded noise; a day's samples with a check standard drifting +0.6 mV over 80 min;
+0.15 mV of seeded noise; a day's samples with a check standard drifting +0.6 mV over 80 min, and the same
+samples' expected levels and conductivities for the batch check before measuring;
 a multiple standard addition into 25 mL of a sample. Every number is invented.
 """
 
@@ -56,6 +57,12 @@ def main() -> None:
             if sid == "well 08":
                 cell = ""  # the reading was not taken
             w.writerow([sid, f"{t:g}", cell, check])
+
+    with open(OUT / "fluoride_batch.csv", "w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(["sample_id", "analyte [mg/L]", "conductivity [uS/cm]"])
+        for (sid, c, _), ec in zip(samples, [180, 420, 260, 900, 150, 1650, 95, 640, 1100], strict=True):
+            w.writerow([sid, f"{c:g}", f"{ec:g}"])
 
     vx, cs, cx = 25.0, 10.0 / F, 0.3 / F  # mL, mol/L, mol/L
     plain = measurement_for("F-")
