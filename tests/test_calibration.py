@@ -337,6 +337,9 @@ def test_error_budget_lists_what_it_cannot_assess():
     b = ia.error_budget(cal, e)
     missing = {t.name for t in b.terms if math.isnan(t.u_mv)}
     assert missing == {"residual γ mismatch", "interference"}
+    # without a sample background the sample is the standard: the models' γ ratio is 1 in every model
+    model = next(t for t in b.terms if t.name == "model choice")
+    assert model.value_mv == pytest.approx(0.0, abs=1e-9)
 
 
 def test_batch_check_takes_its_calibrated_range_from_a_calibration():

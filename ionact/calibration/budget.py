@@ -6,8 +6,9 @@ Terms (each computed by the library's own steps, never re-derived here):
   (:func:`quantify`), a standard uncertainty;
 * **residual γ mismatch** — the design's worst residual activity-coefficient error between
   samples and standards (:attr:`AdjusterDesign.worst_error_mv`), a bound;
-* **model choice** — the spread of the activity models over the treated sample
-  (:func:`compare_models`), a bound;
+* **model choice** — the spread over the activity models (:func:`compare_models`) of the
+  ratio of the analyte's γ in the treated sample to that in a treated standard of the same
+  level (what does not cancel between calibration and reading), a bound;
 * **temperature** — measuring at another temperature than the calibration
   (:func:`temperature_error`), a bound;
 * **interference** — the Nikolsky–Eisenman bias of the stated interferents
@@ -33,7 +34,7 @@ from typing import Any
 import numpy as np
 
 from .._frozen import Record
-from ..electrode import mv_to_relative_error
+from ..electrode import mv_to_relative_error, nernst_slope
 from ..errors import InputError, IonactError
 from .fit import Calibration
 
@@ -195,20 +196,31 @@ def _treated(meas: Any, c: float, sample: Any) -> Any:
 
 
 def _model_term(meas: Any, c: float, sample: Any, z: int, t: float) -> BudgetTerm:
+    """The spread over the activity models of what does not cancel: the ratio of the
+    analyte's γ in the treated sample to its γ in a treated standard of the same level
+    (the calibration and the reading go through the same model, so an error common to
+    both drops out)."""
     import warnings
 
     from ..activity import compare_models
 
     try:
-        sol = _treated(meas, c, sample)
+        smp = _treated(meas, c, sample)
+        ref = _treated(meas, c, None)
         with warnings.catch_warnings():
             warnings.simplefilter("ignore")
-            cmp = compare_models(sol)
+            cs, cr = compare_models(smp), compare_models(ref)
     except IonactError as exc:
         return _missing("model choice", str(exc))
-    spread = float(np.max(cmp.spread_mv.get(meas.analyte, 0.0)))
-    return _bound("model choice", spread, z, t, f"spread of the models in range at I = {sol.ionic_strength:.3g} "
-                  "mol/kg")
+    both = [m for m in cs.gammas if m in cr.gammas]
+    inside = [m for m in both if cs.in_range[m] and cr.in_range[m]] or both
+    ratios = [math.log10(float(np.mean(cs.gammas[m][meas.analyte])) / float(np.mean(cr.gammas[m][meas.analyte])))
+              for m in inside]
+    if not ratios:
+        return _missing("model choice", "no model has parameters for both the sample and the standards")
+    spread = abs(float(nernst_slope(z, t))) * (max(ratios) - min(ratios))
+    return _bound("model choice", spread, z, t, f"spread of γ(sample)/γ(standard) over {len(inside)} models "
+                  f"({', '.join(inside)}) at I = {smp.ionic_strength:.3g} mol/kg")
 
 
 def _temperature_term(meas: Any, c: float, t2: float | None, z: int) -> BudgetTerm:
