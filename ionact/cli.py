@@ -256,6 +256,15 @@ def _design_arg(args: argparse.Namespace) -> Any:
     return None
 
 
+def _calibration_rules(args: argparse.Namespace) -> dict[str, Any]:
+    """The method file's [calibration] table (acceptance rules), when --method names one."""
+    if not getattr(args, "method", None):
+        return {}
+    from .method import load_calibration_settings
+
+    return load_calibration_settings(args.method)
+
+
 def _read_calibration(path: str) -> Any:
     from .calibration import Calibration
 
@@ -278,10 +287,13 @@ def cmd_calibrate(args: argparse.Namespace) -> int:
     if analyte is None:
         raise IonactError("give --analyte (or a --design/--method, whose analyte is used)")
     data = read_standards_csv(args.standards, analyte, delimiter=args.delimiter, decimal_comma=args.decimal_comma)
-    window = (90.0, 105.0) if args.slope_window is None else tuple(float(x) for x in args.slope_window)
+    rules = _calibration_rules(args)
+    window: tuple[float, ...] = tuple(rules.get("slope_window", (90.0, 105.0))) if args.slope_window is None else \
+        tuple(float(_quantity(x, "", "--slope-window") or 0.0) for x in args.slope_window)
     cal = calibrate(analyte, data["concentrations"], data["potentials_mv"], sd_mv=data["sd_mv"],
-                    temperature=args.temperature, design=design, model=args.model, fit=args.fit,
-                    slope_window=window, linearity_mv=args.linearity)
+                    temperature=args.temperature, design=design, model=args.model,
+                    fit=args.fit or rules.get("fit", "auto"), slope_window=window,
+                    linearity_mv=args.linearity if args.linearity is not None else rules.get("linearity_mv", 1.0))
     payload = {"format": "ionact-calibration", "version": 1, **cal.to_dict()}
     if args.plot:
         with atomic_binary(args.plot) as tmp:
@@ -316,8 +328,11 @@ def cmd_quantify(args: argparse.Namespace) -> int:
     samples = ~r.is_check
     check = None if chk is None else DriftCheck(chk[0], chk[1], chk[2])
     times = None if r.times is None else r.times[samples]
+    rules = _calibration_rules(args)
     q = quantify(cal, r.potentials[samples], times=times if check is not None else None, check=check,
-                 correct_drift=args.correct_drift, drift_limit_mv=args.drift_limit, coverage=args.coverage)
+                 correct_drift=args.correct_drift,
+                 drift_limit_mv=args.drift_limit if args.drift_limit is not None else rules.get("drift_limit_mv", 2.0),
+                 coverage=args.coverage if args.coverage is not None else rules.get("coverage", 0.95))
     unit = args.unit or "mol/L"
     factor = float(convert_amount(1.0, MOLAR, unit, ion))
     header, rows = quantity_rows(q, r, unit, factor)
@@ -564,11 +579,12 @@ def build_parser() -> argparse.ArgumentParser:
     cal.add_argument("--design", help="DESIGN.json: the standards were mixed with this adjuster")
     cal.add_argument("--method", help="METHOD.toml or example:NAME: the same, designed from a method file")
     cal.add_argument("-m", "--model", help="activity model (default: the design's, else auto)")
-    cal.add_argument("--fit", choices=["auto", "nernst", "nikolsky"], default="auto", help="calibration function")
+    cal.add_argument("--fit", choices=["auto", "nernst", "nikolsky"],
+                     help="calibration function (default: the method file's, else auto)")
     cal.add_argument("--slope-window", nargs=2, metavar=("LOW", "HIGH"),
-                     help="accepted slope, %% of Nernstian (default 90 105, common practice)")
-    cal.add_argument("--linearity", type=float, default=1.0,
-                     help="largest residual in the linear range, mV (default 1)")
+                     help="accepted slope, %% of Nernstian (default: the method file's, else 90 105, common practice)")
+    cal.add_argument("--linearity", type=float,
+                     help="largest residual in the linear range, mV (default: the method file's, else 1)")
     cal.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
     cal.add_argument("--decimal-comma", action="store_true", default=None, help="read decimal commas")
     cal.add_argument("--out", help="write the calibration (JSON) here, for 'ionact quantify'")
@@ -583,9 +599,10 @@ def build_parser() -> argparse.ArgumentParser:
     qu.add_argument("--design", help="DESIGN.json: check that the calibration was made with it")
     qu.add_argument("--method", help="METHOD.toml or example:NAME: the same check against a method file")
     qu.add_argument("--unit", help="report concentrations in this unit (default mol/L)")
-    qu.add_argument("--coverage", type=float, default=0.95, help="of the intervals (default 0.95)")
+    qu.add_argument("--coverage", type=float, help="of the intervals (default: the method file's, else 0.95)")
     qu.add_argument("--correct-drift", action="store_true", help="subtract the check standard's interpolated drift")
-    qu.add_argument("--drift-limit", type=float, default=2.0, help="largest acceptable drift, mV (default 2)")
+    qu.add_argument("--drift-limit", type=float,
+                    help="largest acceptable drift, mV (default: the method file's, else 2)")
     qu.add_argument("--delimiter", choices=[",", ";", "\t"], help="the file's delimiter (default: from the header)")
     qu.add_argument("--decimal-comma", action="store_true", default=None, help="read decimal commas")
     qu.add_argument("--out", help="write the report CSV here ('-' for standard output)")

@@ -23,7 +23,8 @@ from .equilibrium import Complex
 from .errors import InputError
 from .species import Ion, resolve_ion
 
-__all__ = ["load_method", "example_path", "example_names", "METHOD_KEYS", "keys_help", "MAX_METHOD_BYTES"]
+__all__ = ["load_method", "load_calibration_settings", "example_path", "example_names", "METHOD_KEYS", "keys_help",
+           "MAX_METHOD_BYTES"]
 
 MAX_METHOD_BYTES = 1_000_000
 
@@ -65,6 +66,11 @@ METHOD_KEYS: dict[str, dict[str, str]] = {
     "species.NAME": {"formula": "chemical formula without charge (required)", "charge": "signed charge (required)",
                      "molar_mass": "g/mol (default: from the formula)", "size": "ion-size parameter å, Å",
                      "volume": "apparent molar volume at infinite dilution, cm³/mol"},
+    "calibration": {"fit": "\"auto\", \"nernst\" or \"nikolsky\" (ionact calibrate)",
+                    "slope_window": "[low, high] accepted slope, % of Nernstian (default [90, 105])",
+                    "linearity_mv": "largest residual in the linear range, mV (default 1)",
+                    "drift_limit_mv": "largest check-standard drift, mV (ionact quantify; default 2)",
+                    "coverage": "of the reported intervals (default 0.95)"},
     "complexes.NAME": {"formula": "the species' formula, with or without charge notation (required)",
                        "charge": "signed charge when the formula has no charge notation",
                        "components": "{ion = count} it forms from; ions by notation or [species] name (required)",
@@ -221,6 +227,38 @@ def _complexes(data: Mapping[str, Any], species: Mapping[str, Ion], src: str) ->
     return out
 
 
+def load_calibration_settings(path: Any) -> dict[str, Any]:
+    """The ``[calibration]`` table of a method file (empty when absent), checked: the
+    acceptance rules the laboratory measures the method with."""
+    data, src = _read(path)
+    cal = _table(data, "calibration", src, required=False)
+    _check_keys(cal, "calibration", src)
+    out: dict[str, Any] = {}
+    if "fit" in cal:
+        if cal["fit"] not in ("auto", "nernst", "nikolsky"):
+            raise InputError(f"{src}: [calibration] fit {cal['fit']!r} must be auto, nernst or nikolsky")
+        out["fit"] = cal["fit"]
+    if "slope_window" in cal:
+        w = cal["slope_window"]
+        if not (isinstance(w, list) and len(w) == 2 and all(_number(x) for x in w) and 0 < w[0] < w[1]):
+            raise InputError(f"{src}: [calibration] slope_window {w!r} must be [low, high] with 0 < low < high")
+        out["slope_window"] = (float(w[0]), float(w[1]))
+    for key in ("linearity_mv", "drift_limit_mv"):
+        if key in cal:
+            if not (_number(cal[key]) and cal[key] > 0):
+                raise InputError(f"{src}: [calibration] {key} {cal[key]!r} must be a positive number of mV")
+            out[key] = float(cal[key])
+    if "coverage" in cal:
+        if not (_number(cal["coverage"]) and 0 < cal["coverage"] < 1):
+            raise InputError(f"{src}: [calibration] coverage {cal['coverage']!r} must lie between 0 and 1")
+        out["coverage"] = float(cal["coverage"])
+    return out
+
+
+def _number(x: Any) -> bool:
+    return isinstance(x, int | float) and not isinstance(x, bool) and x == x and abs(x) != float("inf")
+
+
 def load_method(path: Any) -> dict[str, Any]:
     """Read a method file into keyword arguments for :func:`ionact.design_adjuster`.
 
@@ -235,7 +273,7 @@ def load_method(path: Any) -> dict[str, Any]:
     tables = set(data) - set(top)
     _check_keys(top, "(top level)", src)
     unknown = sorted(tables - {"budget", "analyte_range", "samples", "adjuster", "electrode", "species",
-                               "complexes"})
+                               "complexes", "calibration"})
     if unknown:
         raise InputError(f"{src}: unknown table(s) {', '.join(unknown)}")
     try:

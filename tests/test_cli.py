@@ -259,3 +259,19 @@ def test_check_takes_its_range_from_a_calibration_file(capsys, tmp_path):
     rc, out, _ = run(capsys, "check", str(batch), "--design", str(design), "--calibration-file", str(cal), "--json")
     data = json.loads(out)
     assert data["calibration_range_mol_per_l"] == pytest.approx([0.05 / 18998.4032, 5 / 18998.4032], rel=1e-6)
+
+
+def test_method_file_calibration_rules_apply(capsys, tmp_path):
+    # the example method accepts 92–103 % of Nernstian; a command-line window overrides it
+    rc, out, _ = run(capsys, "calibrate", _example("fluoride_standards.csv"), "--method", "example:fluoride_buffered")
+    assert rc == 0 and "(limit 92–103)" in out
+    rc, out, _ = run(capsys, "calibrate", _example("fluoride_standards.csv"), "--method", "example:fluoride_buffered",
+                     "--slope-window", "99.5", "105")
+    assert rc == 1 and "(limit 99.5–105)" in out
+    bad = tmp_path / "m.toml"
+    from ionact.method import example_path
+
+    bad.write_text(example_path("nitrate_irrigation").read_text() + "\n[calibration]\nslope_window = [105, 90]\n")
+    rc, _, err = run(capsys, "calibrate", _example("fluoride_standards.csv"), "--analyte", "F-", "--method",
+                     str(bad))
+    assert rc == 2 and "slope_window" in err
