@@ -349,3 +349,14 @@ def test_batch_check_takes_its_calibrated_range_from_a_calibration():
     other = ia.calibrate("F-", C_STD[3:], _potentials(C_STD[3:]))
     with pytest.raises(ia.InputError, match="the calibration is for F-"):
         ia.check_samples({"analyte": [2e-4], "ionic_strength": [0.01]}, design, calibration_range=other)
+
+
+def test_standards_given_as_activities():
+    c = C_STD[3:]
+    a = measurement_for("F-").activity(c)
+    by_a = ia.calibrate("F-", None, _potentials(c), activities=a)
+    by_c = ia.calibrate("F-", c, _potentials(c))
+    assert by_a.slope_mv == pytest.approx(by_c.slope_mv, rel=1e-9)
+    assert by_a.concentrations == pytest.approx(c, rel=1e-9)
+    with pytest.raises(ia.InputError, match="one of the two"):
+        ia.calibrate("F-", c, _potentials(c), activities=a)

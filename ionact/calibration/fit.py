@@ -25,6 +25,7 @@ import numpy as np
 from .._frozen import Record, readonly
 from ..electrode import nernst_slope
 from ..errors import InputError
+from ..units import parse_scalar
 from .context import Measurement, measurement_for, millivolts, molar_values
 
 __all__ = ["Calibration", "CalibrationCheck", "calibrate", "FITS", "DEFAULT_SLOPE_WINDOW", "DEFAULT_LINEARITY_MV"]
@@ -189,7 +190,7 @@ def _pm(cov: np.ndarray, i: int) -> str:
 def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperature: Any = 25.0, design: Any = None,
               matrix: Any = None, model: str | None = None, fit: str = "auto", sd_mv: Any = None,
               counter_ion: Any = None, slope_window: Sequence[float] = DEFAULT_SLOPE_WINDOW,
-              linearity_mv: float = DEFAULT_LINEARITY_MV) -> Calibration:
+              linearity_mv: float = DEFAULT_LINEARITY_MV, activities: Any = None) -> Calibration:
     """Fit a calibration from standards and their potentials.
 
     Parameters
@@ -216,6 +217,9 @@ def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperat
         Accepted slope, % of Nernstian.
     linearity_mv : float
         Largest residual (mV) of a standard inside the linear range.
+    activities : sequence, optional
+        Standards given by their activity in the measured solution instead (pass
+        ``concentrations=None``); their concentrations follow through the same path.
 
     Returns
     -------
@@ -237,8 +241,20 @@ def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperat
                          allowed="> 0", field="linearity_mv")
     meas = measurement_for(analyte, temperature=temperature, design=design, matrix=matrix, model=model,
                            counter_ion=counter_ion)
-    c = molar_values(concentrations, meas.ion, "concentrations")
+    if (concentrations is None) == (activities is None):
+        raise InputError("give the standards' concentrations or their activities (one of the two)",
+                         field="concentrations")
     e = millivolts(potentials_mv, "potentials_mv")
+    if activities is not None:
+        try:
+            a_given = np.asarray([parse_scalar(v, "", f"activities[{i}]") for i, v in enumerate(activities)])
+        except TypeError:
+            raise InputError(f"activities {activities!r} must be a sequence of numbers", field="activities") from None
+        if np.any(~(a_given > 0)):
+            raise InputError("activities must be positive numbers", field="activities")
+        c = meas.concentration(a_given)
+    else:
+        c = molar_values(concentrations, meas.ion, "concentrations")
     _check_series(c, e)
     sd = None if sd_mv is None else millivolts(sd_mv, "sd_mv")
     if sd is not None and (sd.size != c.size or np.any(~(sd > 0))):
