@@ -4,7 +4,7 @@ The public API is re-exported here; see the README for a tour. ``import ionact``
 light: the pint unit registry and the parameter tables are created on first use.
 """
 
-__version__ = "0.1.0"
+__version__ = "0.2.0.dev0"
 
 from typing import TYPE_CHECKING, Any
 

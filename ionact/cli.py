@@ -348,8 +348,10 @@ def cmd_quantify(args: argparse.Namespace) -> int:
                 w.writerow(header)
                 w.writerows([[safe_cell(v) for v in row] for row in rows])
     if args.json:
-        print(_json_text({"format": "ionact-quantitation", "version": 1, "unit": unit, "columns": header,
-                          "rows": rows, "coverage": q.coverage}))
+        keys = ("sample_id", "potential_mv", "drift_mv", "corrected_mv", "concentration", "low", "high", "status",
+                "reason")  # stable keys: the unit is a field, never part of a key
+        print(_json_text({"format": "ionact-quantitation", "version": 1, "unit": unit, "coverage": q.coverage,
+                          "rows": [dict(zip(keys, row, strict=True)) for row in rows]}))
     elif args.out != "-":
         counts: dict[str, int] = {}
         for row in rows:
