@@ -80,6 +80,7 @@ class ActivityCoefficients(Mapping):
         self.in_range = not any(getattr(v, "kind", "ionic-strength") == "ionic-strength" for v in violations)
         self.free: dict[str, Any] = dict(gammas)  # free-ion γ (the same as the values without equilibrium)
         self.speciation: Any = None
+        self.index: Any = None  # the DataFrame index of the solution, when it came from one
 
     def __getitem__(self, key):
         if key in self._g:
@@ -102,6 +103,15 @@ class ActivityCoefficients(Mapping):
             f"{k!r}: {v:.4f}" if np.ndim(v) == 0 else f"{k!r}: array{np.shape(v)}" for k, v in self._g.items()
         )
         return f"ActivityCoefficients(model={self.model!r}, {{{body}}})"
+
+    def to_pandas(self) -> Any:
+        """γ of every ion as a DataFrame (one row per solution, on the solution's DataFrame
+        index when it was built from one), with the ionic strength."""
+        from ._pandas import to_frame
+
+        cols: dict[str, Any] = {k: np.atleast_1d(np.asarray(v, dtype=float)).reshape(-1) for k, v in self._g.items()}
+        cols["ionic_strength"] = np.atleast_1d(np.asarray(self.ionic_strength, dtype=float)).reshape(-1)
+        return to_frame(cols, getattr(self, "index", None))
 
     def to_dict(self) -> dict:
         """JSON-ready dict."""
@@ -227,6 +237,7 @@ def activity_coefficients(
         g = np.exp(LN10 * step.log10_gamma[k]).reshape(shape)
         gam[n] = float(g) if g.ndim == 0 else g
     out = ActivityCoefficients(gam, choice, notes, solution.ionic_strength, step.violations)
+    out.index = solution.index
     out.speciation = speciation_of(step, shape, batch.t)
     if out.speciation is not None:
         sp = out.speciation

@@ -16,10 +16,12 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from functools import cached_property
+from typing import Any
 
 import numpy as np
 
 from . import water
+from ._pandas import frame_amounts, is_frame
 from .density import check_density, solution_density, water_per_litre
 from .errors import InputError
 from .species import Ion, Salt, resolve_ion
@@ -43,11 +45,13 @@ class Solution:
 
     Parameters
     ----------
-    amounts : mapping of str (or Ion) to amount
+    amounts : mapping of str (or Ion) to amount, or a pandas DataFrame
         Ion notation -> amount; notations must name tabulated ions, other species are
         passed as explicit :class:`~ionact.species.Ion` objects. Bare numbers (or arrays) are mol/kg unless
         ``basis="molar"``; strings and pint quantities mean what they say
-        ("0.1 mol/L", "35 mg/L", "10 mg/L as N"). Arrays give a batch.
+        ("0.1 mol/L", "35 mg/L", "10 mg/L as N"). Arrays give a batch. A DataFrame gives a
+        batch of its rows: columns named by ion, the unit in brackets ("Ca^2+ [mg/L]") or in
+        ``units=``; its index is kept (:attr:`index`).
     temperature : float or array_like
         °C (0–100), broadcast against the amounts.
     balance : str, optional
@@ -61,6 +65,8 @@ class Solution:
         solution's density in kg/L.
     basis : {"molal", "molar"}
         The unit of bare numbers.
+    units : mapping, optional
+        With a DataFrame: column -> unit, for columns without "[unit]".
 
     Raises
     ------
@@ -90,9 +96,17 @@ class Solution:
         charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE,
         density=None,
         basis: str = MOLAL,
+        units: Mapping[str, str] | None = None,
     ) -> None:
         if amounts is None:
             amounts = {}
+        index = None
+        if is_frame(amounts):  # columns named by ion, units in brackets or in units=
+            amounts, index = frame_amounts(
+                amounts, units, lambda n, u: parse_amount(f"1 {u}", resolve_ion(n), default_basis=basis),
+                lambda n, v: Amount(v, basis))
+        elif units is not None:
+            raise InputError("units= goes with a DataFrame; give unit strings for a mapping of amounts")
         if not isinstance(amounts, Mapping):
             raise InputError(f"amounts must be a mapping of ion -> amount, got {type(amounts).__name__}")
         parts: list[tuple[Ion, Amount]] = []
@@ -101,6 +115,13 @@ class Solution:
             amt = value if isinstance(value, Amount) else parse_amount(value, ion, default_basis=basis)
             parts.append((ion, amt))
         self._build(parts, temperature, balance, charge_tolerance, density, check_duplicates=True)
+        self._index = index
+
+    @property
+    def index(self) -> Any:
+        """The DataFrame index the solution was built from (None otherwise); results'
+        ``to_pandas()`` put their rows on it."""
+        return getattr(self, "_index", None)
 
     # -- construction ---------------------------------------------------------------
     def _build(self, parts, temperature, balance, charge_tolerance, density, check_duplicates):
@@ -302,6 +323,7 @@ class Solution:
         density=None,
         balance: str | None = None,
         charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE,
+        units: Mapping[str, str] | None = None,
     ) -> Solution:
         """Build a solution from salt amounts (each salt dissociated into its ions).
 
@@ -313,6 +335,8 @@ class Solution:
             units using the salt's molar mass including hydrate water).
         extra : mapping, optional
             Further ions (or neutral solutes) by ion notation.
+        units : mapping, optional
+            With a DataFrame of salts: column -> unit, for columns without "[unit]".
 
         Examples
         --------
@@ -320,6 +344,12 @@ class Solution:
         >>> round(s.ionic_strength, 6)
         0.106
         """
+        index = None
+        if is_frame(salts):  # columns named by salt, units in brackets or in units=
+            salts, index = frame_amounts(salts, units, lambda n, u: _salt_amount(Salt.parse(n), f"1 {u}", basis),
+                                         lambda n, v: Amount(v, basis))
+        elif units is not None:
+            raise InputError("units= goes with a DataFrame; give unit strings for a mapping of amounts")
         if not isinstance(salts, Mapping):
             raise InputError(f"salts must be a mapping of salt -> amount, got {type(salts).__name__}")
         parts: list[tuple[Ion, Amount]] = []
@@ -331,8 +361,9 @@ class Solution:
         for key, value in (extra or {}).items():
             ion = resolve_ion(key)
             parts.append((ion, parse_amount(value, ion, default_basis=basis)))
-        return cls.from_parts(parts, temperature, balance=balance, charge_tolerance=charge_tolerance,
-                              density=density)
+        out = cls.from_parts(parts, temperature, balance=balance, charge_tolerance=charge_tolerance, density=density)
+        out._index = index
+        return out
 
     @classmethod
     def from_ionic_strength(cls, ionic_strength, salt: str = "NaCl", temperature=25.0) -> Solution:

@@ -20,6 +20,7 @@ from typing import Any
 import numpy as np
 
 from .._frozen import Record, readonly
+from .._pandas import is_series
 from ..errors import InputError
 from .context import millivolts, molar_values
 from .fit import Calibration
@@ -102,6 +103,17 @@ class Quantitation(Record):
 
     def __len__(self) -> int:
         return int(self.concentration.size)
+
+    def to_pandas(self, unit: str = "mol/L", index: Any = None) -> Any:
+        """Every row as a DataFrame (concentrations in ``unit``, named in the columns' values not
+        their keys), on ``index``, else on the index of the potentials' Series when given one."""
+        from .._pandas import to_frame
+
+        c, iv = self.in_unit(unit)
+        return to_frame({"potential_mv": self.potentials_mv, "drift_mv": self.drift_mv,
+                         "corrected_mv": self.corrected_mv, "concentration": c, "low": iv[0], "high": iv[1],
+                         "unit": [unit] * len(self), "status": list(self.status), "reason": list(self.reason)},
+                        index if index is not None else getattr(self, "_index", None))
 
     def in_unit(self, unit: str) -> tuple[np.ndarray, np.ndarray]:
         """Concentrations and intervals in ``unit`` (any per-litre unit: "mg/L", "µmol/L", "mg/L as N" …)."""
@@ -189,8 +201,11 @@ def quantify(calibration: Calibration, potentials_mv: Any, *, times: Any = None,
         interval[0, good] = np.where(np.isfinite(lo_a), lows, np.nan)
         interval[1, good] = np.where(np.isfinite(hi_a), _safe_conc(meas, hi_a), np.nan)
     status, reason = _statuses(calibration, e, conc, drift, valid, below, drift_limit_mv)
-    return Quantitation(e, corrected, drift, np.where(good, a, np.nan), conc, interval, float(coverage),
-                        tuple(status), tuple(reason), calibration.analyte)
+    out = Quantitation(e, corrected, drift, np.where(good, a, np.nan), conc, interval, float(coverage),
+                       tuple(status), tuple(reason), calibration.analyte)
+    if is_series(potentials_mv):  # rows come back on the Series' index (not part of the JSON record)
+        object.__setattr__(out, "_index", potentials_mv.index)
+    return out
 
 
 def _safe_conc(meas: Any, a: np.ndarray) -> np.ndarray:

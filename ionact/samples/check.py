@@ -22,6 +22,7 @@ from typing import Any
 
 import numpy as np
 
+from .._pandas import is_frame
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
 from ..electrode import nernst_slope
@@ -90,7 +91,7 @@ def _columns(samples: Any) -> tuple[dict[str, list[Any]], list[str | None], str 
     """Columns, per-row reader errors, delimiter, decimal-comma rule and units from any accepted input."""
     if isinstance(samples, SampleTable):
         return samples.columns, list(samples.row_errors), samples.delimiter, samples.decimal_comma, dict(samples.units)
-    if hasattr(samples, "to_dict") and hasattr(samples, "columns") and hasattr(samples, "index"):  # a DataFrame
+    if is_frame(samples):
         cols = {str(k): list(samples[k]) for k in samples.columns}
     elif isinstance(samples, Mapping):
         cols = {}
@@ -352,7 +353,10 @@ def check_samples(
         sys.stderr.write("\n")
     unit = next(s.unit for s in specs if s.role == "analyte") or "mol/L"
     factor = next(s.factor for s in specs if s.role == "analyte")
-    return _classify(vals, method, dil, cal, err, t_an, t_i, lg, free, core, unit, factor)
+    result = _classify(vals, method, dil, cal, err, t_an, t_i, lg, free, core, unit, factor)
+    if is_frame(samples):  # the rows come back on the frame's index (not part of the JSON record)
+        object.__setattr__(result, "_index", samples.index)
+    return result
 
 
 def _rules(rule: str | Mapping[str, str] | None) -> dict[str, str]:

@@ -150,11 +150,12 @@ class SampleCheck:
                    str(d.get("model", "")), unit, factor)
 
     def to_pandas(self, index: Any = None) -> Any:
-        """The report as a pandas DataFrame (pandas is imported only here), on ``index`` if given."""
+        """The report as a pandas DataFrame (pandas is imported only here): on ``index`` if
+        given, else on the index of the DataFrame the samples came in."""
         import pandas as pd
 
         return pd.DataFrame({h: list(v) if not isinstance(v, np.ndarray) else v for h, v in self.columns()},
-                            index=index)
+                            index=index if index is not None else getattr(self, "_index", None))
 
     def plot(self, path: Any = None, *, ax: Any = None) -> Any:
         """Each sample on ionic strength vs analyte level; the design's envelope and the
