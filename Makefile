@@ -4,7 +4,7 @@ VENV   := .venv
 PY     := $(VENV)/bin/python
 PIP    := $(PY) -m pip --disable-pip-version-check -q
 
-.PHONY: demo test bench lint clean
+.PHONY: demo test bench lint docs clean
 
 $(PY):
 	$(PYTHON) -m venv $(VENV)
@@ -28,8 +28,11 @@ test: $(VENV)/.test
 bench: $(VENV)/.test
 	$(PY) benchmarks/run.py
 
+docs: $(VENV)/.test
+	$(PY) -m sphinx -q -W --keep-going -b html docs docs/_build/html
+
 lint: $(VENV)/.test
 	$(PY) -m ruff check ionact tests benchmarks tools
 
 clean:
-	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json
+	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json docs/_build docs/generated

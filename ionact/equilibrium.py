@@ -633,7 +633,7 @@ class Speciation:
     species : tuple of str
         Every species, components (free ions) first.
     molality, activity, gamma : ndarray
-        (n_species, *shape): mol/kg, molal-scale activity, activity coefficient.
+        ``(n_species, *shape)``: mol/kg, molal-scale activity, activity coefficient.
     ionic_strength : ndarray
         From all species, mol/kg.
     pH : ndarray

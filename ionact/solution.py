@@ -58,7 +58,7 @@ class Solution:
         An ion whose amount is adjusted to make the solution electroneutral. Without it,
         an imbalance beyond ``charge_tolerance`` is an error.
     charge_tolerance : float
-        Largest allowed relative imbalance |Σ z m| / (½ Σ |z| m); default 1e-6.
+        Largest allowed relative imbalance ``|Σ z m| / (½ Σ |z| m)``; default 1e-6.
     density : None, "water", float or array_like
         How molar amounts become molal: None uses the apparent-molar-volume model,
         "water" takes 1 L of solution to hold ρ_w kg of water, a number is the
@@ -250,7 +250,7 @@ class Solution:
         ions : sequence of str or Ion
             The species, in the order of the first axis of ``molalities``.
         molalities : array_like
-            mol/kg, shape (n_ions, *batch_shape); finite and ≥ 0.
+            mol/kg, shape ``(n_ions, *batch_shape)``; finite and ≥ 0.
         temperature : float or array_like
             °C, broadcast to the batch shape.
         density : None, "water" or float
@@ -421,7 +421,7 @@ class Solution:
 
     @property
     def molality_array(self) -> np.ndarray:
-        """Molalities as one read-only array of shape (n_ions, *batch_shape), mol/kg."""
+        """Molalities as one read-only array of shape ``(n_ions, *batch_shape)``, mol/kg."""
         return self._m
 
     @property

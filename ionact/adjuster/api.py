@@ -238,7 +238,7 @@ def design_adjuster(
     """Design (or evaluate) an ionic strength adjuster for an ion-selective electrode method.
 
     Every sample of the population, at every analyte level, and every calibration standard
-    are mixed with the adjuster; the largest |ΔE| = (S/|z|)·|log10(γ_sample/γ_standard)|
+    are mixed with the adjuster; the largest ``|ΔE| = (S/|z|)·|log10(γ_sample/γ_standard)|``
     over samples × levels × standards is held against the budget. The smallest stock
     strength (``solve="stock"``) or volume ratio (``solve="ratio"``) that meets it is
     found by bracketing on a grid and refining the first crossing (the error is not

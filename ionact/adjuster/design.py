@@ -107,7 +107,7 @@ class AdjusterDesign:
     budget : Budget
         As given; ``budget_mv`` is it in mV at the method's temperature.
     worst_error_mv, worst_error_percent : float
-        The largest |ΔE| over samples × analyte levels × standards, and the relative error it implies.
+        The largest ``|ΔE|`` over samples × analyte levels × standards, and the relative error it implies.
     worst_case : mapping
         Where it occurs: sample label, analyte level and standard (mol/L).
     final_ionic_strength : (float, float)

@@ -84,7 +84,7 @@ class Budget:
     Parameters
     ----------
     mv : float, optional
-        Largest allowed |ΔE| in mV (0 < mv ≤ 100).
+        Largest allowed ``|ΔE|`` in mV (0 < mv ≤ 100).
     percent : float, optional
         Largest allowed relative concentration error in % (0 < percent ≤ 100); converted to
         mV with the Nernst slope at the method's temperature.
@@ -102,7 +102,7 @@ class Budget:
             object.__setattr__(self, "percent", number(self.percent, "budget percent", 0.0, 100.0, lo_open=True))
 
     def in_mv(self, charge: int, temperature: float) -> float:
-        """The budget as |ΔE| in mV for an ion of this charge at this temperature (°C)."""
+        """The budget as ``|ΔE|`` in mV for an ion of this charge at this temperature (°C)."""
         if self.mv is not None:
             return self.mv
         assert self.percent is not None

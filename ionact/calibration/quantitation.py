@@ -152,7 +152,7 @@ def quantify(calibration: Calibration, potentials_mv: Any, *, times: Any = None,
     correct_drift : bool
         Subtract the interpolated offset from each sample's potential.
     drift_limit_mv : float
-        Largest acceptable |offset|; rows beyond it get the status "drift beyond the limit".
+        Largest acceptable absolute offset; rows beyond it get the status "drift beyond the limit".
     coverage : float
         Of the interval (0 < coverage < 1).
 
