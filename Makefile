@@ -4,7 +4,7 @@ VENV   := .venv
 PY     := $(VENV)/bin/python
 PIP    := $(PY) -m pip --disable-pip-version-check -q
 
-.PHONY: demo test bench lint docs clean
+.PHONY: demo test test-oldest bench lint docs clean
 
 $(PY):
 	$(PYTHON) -m venv $(VENV)
@@ -25,6 +25,14 @@ test: $(VENV)/.test
 	$(PY) -m mypy
 	$(PY) -m pytest -q
 
+OLD := .venv-oldest
+
+test-oldest:
+	test -x $(OLD)/bin/python || $(PYTHON) -m venv $(OLD)
+	$(OLD)/bin/python -m pip --disable-pip-version-check -q install -r requirements-oldest.txt -e ".[test]"
+	$(OLD)/bin/python -m pip --disable-pip-version-check -q install -r requirements-oldest.txt
+	$(OLD)/bin/python -m pytest -q -p no:cacheprovider
+
 bench: $(VENV)/.test
 	$(PY) benchmarks/run.py
 
@@ -35,4 +43,4 @@ lint: $(VENV)/.test
 	$(PY) -m ruff check ionact tests benchmarks tools
 
 clean:
-	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json docs/_build docs/generated
+	rm -rf $(VENV) .pytest_cache .hypothesis build *.egg-info benchmarks/results.json docs/_build docs/generated $(OLD)
