@@ -489,8 +489,9 @@ _EPILOG = "exit status: 0 success, 1 a check failed (the report is still printed
 def build_parser() -> argparse.ArgumentParser:
     from . import __version__
 
-    p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients, ionic strength "
-                                "adjuster design and batch checks for ion-selective electrode methods.",
+    p = argparse.ArgumentParser(prog="ionact", description="Ionic strength, activity coefficients, chemical "
+                                "equilibrium, ionic strength adjuster design, batch checks, calibration and "
+                                "quantitation for ion-selective electrode methods.",
                                 epilog=_EPILOG)
     p.add_argument("--version", action="version", version=f"ionact {__version__}")
     p.add_argument("--debug", action="store_true", help="show tracebacks")
@@ -501,6 +502,21 @@ def build_parser() -> argparse.ArgumentParser:
         return sub.add_parser(name, help=help_, description=help_ + ".", epilog=f"example: {example}\n{_EPILOG}",
                               formatter_class=argparse.RawDescriptionHelpFormatter)
 
+    _job_strength(job)
+    _job_gamma(job)
+    _job_convert(job)
+    _job_speciate(job)
+    _job_design(job)
+    _job_check(job)
+    _job_calibrate(job)
+    _job_quantify(job)
+    _job_addition(job)
+    _job_demo(job)
+    return p
+
+
+def _job_strength(job: Any) -> None:
+    """The 'strength' subcommand and its options."""
     s = job("strength", "ionic strength of a composition, or estimated from conductivity or dissolved solids",
             "ionact strength NaCl=0.1 'CaCl2=2 mmol/kg'   |   ionact strength --conductivity '0.85 mS/cm'")
     _composition_args(s)
@@ -509,6 +525,9 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--rule", help="rule of thumb: russell, griffin-jurinak (conductivity) or langelier (TDS)")
     s.set_defaults(func=cmd_strength)
 
+
+def _job_gamma(job: Any) -> None:
+    """The 'gamma' subcommand and its options."""
     g = job("gamma", "activity coefficients of a composition by a model",
             "ionact gamma NaCl=0.5 --model pitzer --json")
     _composition_args(g)
@@ -517,6 +536,9 @@ def build_parser() -> argparse.ArgumentParser:
     g.add_argument("--compare", action="store_true", help="every model side by side with their spread")
     g.set_defaults(func=cmd_gamma)
 
+
+def _job_convert(job: Any) -> None:
+    """The 'convert' subcommand and its options."""
     c = job("convert", "activity <-> concentration of an analyte in a matrix",
             "ionact convert F- --px 4 --matrix NaCl=0.1 --unit mg/L")
     c.add_argument("ion", help="the analyte, e.g. F- or Ca^2+")
@@ -529,6 +551,9 @@ def build_parser() -> argparse.ArgumentParser:
     c.add_argument("--unit", action="append", help="also report the concentration in this unit (repeatable)")
     c.set_defaults(func=cmd_convert)
 
+
+def _job_speciate(job: Any) -> None:
+    """The 'speciate' subcommand and its options."""
     sp = job("speciate", "chemical equilibrium of a composition of totals: species, fractions, pH, saturation",
              "ionact speciate NaF=1e-4 AlCl3=2e-5 --ph 5.5 --json")
     _composition_args(sp)
@@ -539,6 +564,9 @@ def build_parser() -> argparse.ArgumentParser:
     sp.add_argument("--limit", type=int, default=40, help="largest number of species listed (default 40)")
     sp.set_defaults(func=cmd_speciate)
 
+
+def _job_design(job: Any) -> None:
+    """The 'design' subcommand and its options."""
     de = job("design", "design or evaluate an ionic strength adjuster from a method file",
              "ionact design --example nitrate_irrigation --out design.json --plot design.png")
     de.add_argument("method", nargs="?", help="METHOD.toml (keys: ionact design --help-keys)")
@@ -552,6 +580,9 @@ def build_parser() -> argparse.ArgumentParser:
     de.add_argument("--plot", help="write the design figure here (.png, .pdf or .svg)")
     de.set_defaults(func=cmd_design)
 
+
+def _job_check(job: Any) -> None:
+    """The 'check' subcommand and its options."""
     ch = job("check", "check a batch of samples against an adjuster design before measuring",
              "ionact check SAMPLES.csv --design design.json --out REPORT.csv --plot batch.png")
     ch.add_argument("samples", help="SAMPLES.csv ('-' for standard input; columns documented in the README)")
@@ -572,6 +603,9 @@ def build_parser() -> argparse.ArgumentParser:
     ch.add_argument("--json", action="store_true", help="print the results as strict JSON")
     ch.set_defaults(func=cmd_check)
 
+
+def _job_calibrate(job: Any) -> None:
+    """The 'calibrate' subcommand and its options."""
     cal = job("calibrate", "fit an electrode calibration from a standards file",
               "ionact calibrate standards.csv --analyte F- --method example:fluoride_buffered --out cal.json "
               "--plot cal.png")
@@ -594,6 +628,9 @@ def build_parser() -> argparse.ArgumentParser:
     cal.add_argument("--json", action="store_true", help="print the calibration as strict JSON")
     cal.set_defaults(func=cmd_calibrate)
 
+
+def _job_quantify(job: Any) -> None:
+    """The 'quantify' subcommand and its options."""
     qu = job("quantify", "sample potentials to concentrations with their intervals, every row kept",
              "ionact quantify samples.csv --calibration cal.json --unit mg/L --out report.csv")
     qu.add_argument("samples", help="SAMPLES.csv: 'sample_id', 'potential [mV]', optional 'time [min]', 'check [unit]'")
@@ -612,6 +649,9 @@ def build_parser() -> argparse.ArgumentParser:
     qu.add_argument("--json", action="store_true", help="print the rows as strict JSON")
     qu.set_defaults(func=cmd_quantify)
 
+
+def _job_addition(job: Any) -> None:
+    """The 'addition' subcommand and its options."""
     ad = job("addition", "standard addition: known, double known, or multiple (Gran)",
              "ionact addition additions.csv --analyte F- --sample-volume 50 --spike-concentration '100 mg/L'")
     ad.add_argument("additions", help="ADDITIONS.csv: 'volume [mL]' (cumulative, first row 0), 'potential [mV]'")
@@ -630,9 +670,11 @@ def build_parser() -> argparse.ArgumentParser:
     ad.add_argument("--json", action="store_true", help="print the result as strict JSON")
     ad.set_defaults(func=cmd_addition)
 
+
+def _job_demo(job: Any) -> None:
+    """The 'demo' subcommand and its options."""
     d = job("demo", "run the built-in invented scenario", "ionact demo")
     d.set_defaults(func=cmd_demo)
-    return p
 
 
 _SHOWN: set[str] = set()
@@ -641,6 +683,8 @@ _SHOWN: set[str] = set()
 def _one_line_warnings(message: Warning | str, category: type[Warning], filename: str, lineno: int,
                        file: Any = None, line: str | None = None) -> None:
     text = f"ionact: {category.__name__}: {message}"
+    if not category.__module__.startswith("ionact"):  # other packages' chatter (deprecations) is not the user's
+        return
     if text in _SHOWN:  # one job may meet the same range problem in several steps: say it once
         return
     _SHOWN.add(text)

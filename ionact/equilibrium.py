@@ -134,9 +134,9 @@ class Complex:
         if self.charge is None:
             ion = Ion.parse(self.formula)
         else:
-            from .species import _formula_mass
+            from .species import formula_mass
 
-            ion = Ion(formula=self.formula, charge=self.charge, molar_mass=_formula_mass(self.formula),
+            ion = Ion(formula=self.formula, charge=self.charge, molar_mass=formula_mass(self.formula),
                       size=self.size, aq=self.charge == 0)
         return ion if self.size is None else Ion(formula=ion.formula, charge=ion.charge, molar_mass=ion.molar_mass,
                                                  size=self.size, aq=ion.aq, tabulated=ion.tabulated)

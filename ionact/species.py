@@ -30,7 +30,7 @@ _RE_FORMULA = re.compile(r"^[A-Za-z0-9()\[\]]+$")
 _MAX_CHARGE = 6
 
 
-def _formula_mass(formula: str) -> float:
+def formula_mass(formula: str) -> float:
     """Molar mass (g/mol) of a chemical formula via periodictable; InputError if unparseable."""
     if not _RE_FORMULA.match(formula) or not formula[0].isalpha() and formula[0] not in "([":
         raise InputError(f"not a chemical formula: {formula!r}")
@@ -72,7 +72,7 @@ def _complex_ions() -> dict[str, Ion]:
         bare = name[:-4] if aq else name
         m = re.match(r"^(?P<f>.+?)(?:\^\d+)?[+-]$", bare)
         formula = m["f"] if m and rec.charge != 0 else bare
-        out[name] = Ion(formula=formula, charge=rec.charge, molar_mass=_formula_mass(formula), size=rec.size,
+        out[name] = Ion(formula=formula, charge=rec.charge, molar_mass=formula_mass(formula), size=rec.size,
                         tabulated=True, aq=aq)
     return out
 
@@ -90,7 +90,7 @@ def _exact(s: str) -> Ion | None:
 
 
 def _from_record(rec: IonRecord) -> Ion:
-    return Ion(formula=rec.formula, charge=rec.charge, molar_mass=_formula_mass(rec.formula), size=rec.size,
+    return Ion(formula=rec.formula, charge=rec.charge, molar_mass=formula_mass(rec.formula), size=rec.size,
                tj_a=rec.tj_a, tj_b=rec.tj_b, volume=rec.volume, tabulated=True, masson=rec.masson)
 
 
@@ -238,7 +238,7 @@ class Ion:
             return float(v)
 
         mass = opt("molar_mass")
-        return cls(formula=formula, charge=charge, molar_mass=mass if mass is not None else _formula_mass(formula),
+        return cls(formula=formula, charge=charge, molar_mass=mass if mass is not None else formula_mass(formula),
                    size=opt("size"), volume=opt("volume"), masson=opt("masson"), aq=bool(d.get("aq", False)))
 
     @property
@@ -310,7 +310,7 @@ def _parse_ion_cached(text: str) -> Ion:
         raise InputError(f"charge {z:+d} in {text!r} is outside -{_MAX_CHARGE}..+{_MAX_CHARGE}")
     if rec is not None:
         f = rec.formula
-    mass = _formula_mass(f)
+    mass = formula_mass(f)
     if rec is None:
         return Ion(formula=f, charge=z, molar_mass=mass)
     return Ion(

@@ -58,14 +58,14 @@ class RecipeLine:
     @classmethod
     def from_dict(cls, d: Mapping[str, Any]) -> RecipeLine:
         try:
-            return cls(str(d["component"]), str(d["role"]), _num(d["mol_per_l"], "mol_per_l"),
-                       _num(d["g_per_l"], "g_per_l"), _opt(d.get("ml_per_l"), "ml_per_l"),
+            return cls(str(d["component"]), str(d["role"]), number_field(d["mol_per_l"], "mol_per_l"),
+                       number_field(d["g_per_l"], "g_per_l"), _opt(d.get("ml_per_l"), "ml_per_l"),
                        _opt(d.get("liquid_density_g_per_ml"), "liquid_density_g_per_ml"))
         except (KeyError, TypeError) as exc:
             raise InputError(f"recipe line {d!r} is malformed ({exc})") from None
 
 
-def _num(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> float:
+def number_field(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> float:
     bad = InputError(f"design field {what} {str(v)[:40]!r} must be a finite number in {lo:g}–{hi:g}", value=v,
                      allowed=f"{lo:g}–{hi:g}", field=what)
     if isinstance(v, bool) or not isinstance(v, int | float):
@@ -80,13 +80,13 @@ def _num(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> float:
 
 
 def _opt(v: Any, what: str) -> float | None:
-    return None if v is None else _num(v, what)
+    return None if v is None else number_field(v, what)
 
 
-def _pair(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> tuple[float, float]:
+def pair_field(v: Any, what: str, lo: float = 0.0, hi: float = math.inf) -> tuple[float, float]:
     if not isinstance(v, list | tuple) or len(v) != 2:
         raise InputError(f"design field {what} {v!r} must be a pair [low, high]")
-    a, b = _num(v[0], what, lo, hi), _num(v[1], what, lo, hi)
+    a, b = number_field(v[0], what, lo, hi), number_field(v[1], what, lo, hi)
     if a > b:
         raise InputError(f"design field {what} {v!r} must satisfy low ≤ high")
     return a, b

@@ -9,7 +9,7 @@ from ..errors import InputError, IonactError, UnknownSpeciesError
 from ..models.resolver import ModelChoice
 from ..species import Ion, resolve_ion
 from .checks import Check
-from .design import DESIGN_FORMAT, DESIGN_VERSION, AdjusterDesign, RecipeLine, _num, _pair
+from .design import DESIGN_FORMAT, DESIGN_VERSION, AdjusterDesign, RecipeLine, number_field, pair_field
 from .inputs import MAX_VOLUME_RATIO, Budget
 
 __all__ = ["design_from_dict"]
@@ -71,26 +71,26 @@ def _build(d: Mapping[str, Any]) -> AdjusterDesign:
         raise InputError(f"design field counter_ion {counter.name} must carry the charge opposite to the analyte "
                          f"{analyte.name}")
     recipe = tuple(RecipeLine.from_dict(_mapping(r, "recipe[]")) for r in _list(d["recipe"], "recipe", 1))
-    ratio = _num(d["volume_ratio"], "volume_ratio", 0.0, MAX_VOLUME_RATIO)
+    ratio = number_field(d["volume_ratio"], "volume_ratio", 0.0, MAX_VOLUME_RATIO)
     if ratio <= 0:
         raise InputError(f"design field volume_ratio {d['volume_ratio']!r} must be > 0")
-    t = _num(d["temperature_c"], "temperature_c", 0.0, 100.0)
+    t = number_field(d["temperature_c"], "temperature_c", 0.0, 100.0)
     budget = Budget.from_dict(_mapping(d["budget"], "budget"))
-    budget_mv = _num(d["budget_mv"], "budget_mv", 0.0, 100.0)
+    budget_mv = number_field(d["budget_mv"], "budget_mv", 0.0, 100.0)
     if budget_mv <= 0:
         raise InputError("design field budget_mv must be > 0")
-    stock_ions = {_ion(k, "stock_ions_mol_per_l", species).name: _num(v, f"stock_ions_mol_per_l.{k}", 0.0, 50.0)
+    stock_ions = {_ion(k, "stock_ions_mol_per_l", species).name: number_field(v, f"stock_ions_mol_per_l.{k}", 0.0, 50.0)
                   for k, v in _mapping(d["stock_ions_mol_per_l"], "stock_ions_mol_per_l").items()}
-    standards = tuple(_num(x, "standards_mol_per_l", 0.0, 20.0) for x in
+    standards = tuple(number_field(x, "standards_mol_per_l", 0.0, 20.0) for x in
                       _list(d["standards_mol_per_l"], "standards_mol_per_l", 1))
     if any(x <= 0 for x in standards):
         raise InputError("design field standards_mol_per_l must hold positive concentrations")
-    analyte_range = _pair(d["analyte_range_mol_per_l"], "analyte_range_mol_per_l", 0.0, 20.0)
+    analyte_range = pair_field(d["analyte_range_mol_per_l"], "analyte_range_mol_per_l", 0.0, 20.0)
     if analyte_range[0] <= 0:
         raise InputError("design field analyte_range_mol_per_l must start above zero")
     lin = d.get("linear_range_mol_per_l")
-    linear = _pair(lin, "linear_range_mol_per_l", 0.0, 20.0) if lin is not None else None
-    sel = {_ion(k, "selectivity", species).name: _num(v, f"selectivity.{k}", 0.0, 1e6)
+    linear = pair_field(lin, "linear_range_mol_per_l", 0.0, 20.0) if lin is not None else None
+    sel = {_ion(k, "selectivity", species).name: number_field(v, f"selectivity.{k}", 0.0, 1e6)
            for k, v in _mapping(d.get("selectivity") or {}, "selectivity").items()}
     checks = tuple(Check.from_dict(_mapping(c, "checks[]")) for c in _list(d["checks"], "checks"))
     density = d.get("density")
@@ -102,11 +102,11 @@ def _build(d: Mapping[str, Any]) -> AdjusterDesign:
     return AdjusterDesign(
         name=str(d.get("name", "")), analyte=analyte.name, counter_ion=counter.name, recipe=recipe,
         volume_ratio=ratio, solve=str(d.get("solve", "none")), temperature=t, budget=budget, budget_mv=budget_mv,
-        worst_error_mv=_num(d["worst_error_mv"], "worst_error_mv"),
-        worst_error_percent=_num(d["worst_error_percent"], "worst_error_percent"),
+        worst_error_mv=number_field(d["worst_error_mv"], "worst_error_mv"),
+        worst_error_percent=number_field(d["worst_error_percent"], "worst_error_percent"),
         worst_case=_mapping(d.get("worst_case") or {}, "worst_case"),
-        final_ionic_strength=_pair(d["final_ionic_strength"], "final_ionic_strength", 0.0, 30.0),
-        envelope=_pair(d["envelope"], "envelope", 0.0, 30.0), analyte_range=analyte_range, standards=standards,
+        final_ionic_strength=pair_field(d["final_ionic_strength"], "final_ionic_strength", 0.0, 30.0),
+        envelope=pair_field(d["envelope"], "envelope", 0.0, 30.0), analyte_range=analyte_range, standards=standards,
         linear_range=linear, selectivity=sel, model=ModelChoice.from_dict(_mapping(d["model"], "model")),
         checks=checks, notes=tuple(str(x) for x in _list(d.get("notes", []), "notes")),
         cautions=tuple(str(x) for x in _list(d.get("cautions", []), "cautions")), stock_ions=stock_ions,
