@@ -4,7 +4,7 @@ VENV   := .venv
 PY     := $(VENV)/bin/python
 PIP    := $(PY) -m pip --disable-pip-version-check -q
 
-.PHONY: demo test test-oldest bench lint docs clean
+.PHONY: demo test test-oldest bench bench-quick lint docs clean
 
 $(PY):
 	$(PYTHON) -m venv $(VENV)
@@ -35,6 +35,9 @@ test-oldest:
 
 bench: $(VENV)/.test
 	$(PY) benchmarks/run.py
+
+bench-quick: $(VENV)/.test
+	$(PY) benchmarks/run.py --quick
 
 docs: $(VENV)/.test
 	$(PY) -m sphinx -q -W --keep-going -b html docs docs/_build/html
