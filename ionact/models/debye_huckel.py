@@ -90,7 +90,10 @@ def _array(x, what: str, model: str) -> np.ndarray:
 def _prepare(charge, ionic_strength, temperature, model: str, warn: bool = True):
     z = _array(charge, "charge", model)
     i = _array(ionic_strength, "ionic strength", model)
-    lo, hi = (float(np.nanmin(i)), float(np.nanmax(i))) if i.size and not np.all(np.isnan(i)) else (0.0, 0.0)
+    # fmin/fmax skip NaN (NaN out only when every entry is NaN): one pass each, no boolean temporaries
+    lo, hi = (float(np.fmin.reduce(i, axis=None)), float(np.fmax.reduce(i, axis=None))) if i.size else (0.0, 0.0)
+    if np.isnan(lo):
+        lo = hi = 0.0
     if lo < 0:
         raise InputError(f"{model}: ionic strength {i[i < 0].flat[0]:g} mol/kg is negative; allowed: ≥ 0")
     t = water.checked_temperature(temperature, model)
@@ -219,7 +222,14 @@ def davies(charge, ionic_strength, temperature=25.0, *, coefficient=DAVIES_COEFF
     0.7809
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "davies")
-    return _gamma(_lg_davies(z * z, np.sqrt(i), i, a, coefficient))
+    sq = np.sqrt(i)
+    x = sq / (1.0 + sq)
+    x -= coefficient * i
+    k = z * z
+    k = np.multiply(k, -_LN10 * a, out=k if k.shape == np.broadcast_shapes(k.shape, np.shape(a)) and k.ndim else None)
+    x = np.multiply(x, k)
+    g = np.exp(x, out=x) if isinstance(x, np.ndarray) and x.ndim else np.exp(x)
+    return float(g) if np.ndim(g) == 0 else g
 
 
 def truesdell_jones(charge, ionic_strength, a_size, *, b_ion, temperature=25.0) -> float | np.ndarray:
