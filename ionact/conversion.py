@@ -165,6 +165,8 @@ def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
     hi = np.full_like(x, np.inf)
     done = np.zeros(x.shape, dtype=bool)
     h = 1e-6
+    x_prev = np.full_like(x, np.nan)  # the previous iterate and residual: a secant slope, one γ evaluation a step
+    f_prev = np.full_like(x, np.nan)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityRangeWarning)
         for _ in range(100):
@@ -172,9 +174,16 @@ def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
             if not np.any(act):
                 break
             xa = x[act]
-            f = xa + _ln_gamma(p, choice, np.exp(xa), np.flatnonzero(act)) - ln_a[act]
-            f2 = (xa + h) + _ln_gamma(p, choice, np.exp(xa + h), np.flatnonzero(act)) - ln_a[act]
-            d = (f2 - f) / h
+            rows = np.flatnonzero(act)
+            f = xa + _ln_gamma(p, choice, np.exp(xa), rows) - ln_a[act]
+            dxp = xa - x_prev[act]
+            secant = np.isfinite(dxp) & (np.abs(dxp) > 1e-9)
+            if np.all(secant):
+                d = (f - f_prev[act]) / dxp
+            else:  # a forward difference where no usable previous step exists
+                f2 = (xa + h) + _ln_gamma(p, choice, np.exp(xa + h), rows) - ln_a[act]
+                d = np.where(secant, (f - f_prev[act]) / np.where(secant, dxp, 1.0), (f2 - f) / h)
+            x_prev[act], f_prev[act] = xa, f
             lo_a, hi_a = lo[act], hi[act]
             lo_a = np.where(f < 0, np.maximum(lo_a, xa), lo_a)
             hi_a = np.where(f > 0, np.minimum(hi_a, xa), hi_a)
@@ -187,7 +196,7 @@ def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
             xn = np.minimum(xn, x_cap)
             conv = (np.abs(xn - xa) < _TOL) | (np.abs(f) < 1e-14)
             stuck = (xa >= x_cap) & (f < 0)
-            x[act] = np.where(conv, xa, xn)
+            x[act] = xn  # converged samples keep their last Newton step, the most accurate iterate
             lo[act], hi[act] = lo_a, hi_a
             idx = np.flatnonzero(act)
             done[idx[conv | stuck]] = True
