@@ -519,8 +519,44 @@ def _pcf_step(net: Network, m: np.ndarray, totals: np.ndarray, x: np.ndarray, un
         step = np.where(up > 0, np.log(up / np.maximum(sp, 1e-300)) / nbar,
                         -np.log(np.maximum(sp - totals, 1e-300) / np.maximum(sn, 1e-300)))
     step = np.clip(np.nan_to_num(step), -_MAX_STEP, _MAX_STEP)
+    if unknown[net.h]:  # the proton balance is solved in one dimension instead (see _proton_shift)
+        step[net.h] = _proton_shift(net, m, totals[net.h])
     keep = ~unknown[:, None] | absent
     return np.asarray(np.where(keep, x, x + step))
+
+
+def _proton_shift(net: Network, m: np.ndarray, total_h: np.ndarray) -> np.ndarray:
+    """The change of ln m(H+) that closes the proton balance with every other free amount held.
+
+    Raising ln h by δ scales species i by exp(ν_iH δ), so the balance is the one-dimensional
+    f(δ) = Σ_i ν_iH m_i exp(ν_iH δ) − T_H, strictly increasing (f′ = Σ ν_iH² m_i exp(ν_iH δ) > 0).
+    A bracketed Newton iteration on δ solves it for every sample at once. The positive
+    continued fraction handles the other balances well but a buffered proton balance (large
+    amounts on both sides, a total near zero) slowly; this start puts the pH near its answer.
+    """
+    rows = np.flatnonzero(net.nu[:, net.h])
+    nu = net.nu[rows, net.h][:, None]
+    mh = m[rows]
+    delta = np.zeros(m.shape[1])
+    lo = np.full_like(delta, -np.inf)
+    hi = np.full_like(delta, np.inf)
+    with np.errstate(over="ignore", invalid="ignore"):
+        for _ in range(60):
+            terms = nu * mh * np.exp(np.minimum(nu * delta, 700.0))
+            f = terms.sum(axis=0) - total_h
+            df = (nu * terms).sum(axis=0)
+            lo = np.where(f < 0, delta, lo)
+            hi = np.where(f > 0, delta, hi)
+            step = np.clip(-f / np.maximum(df, 1e-300), -_MAX_STEP, _MAX_STEP)
+            new = delta + step
+            outside = (new <= lo) | (new >= hi)
+            both = np.isfinite(lo) & np.isfinite(hi)
+            new = np.where(outside & both, 0.5 * (lo + hi), new)
+            moved = np.abs(new - delta)
+            delta = np.where(np.isfinite(new), new, delta)
+            if np.all(moved < 1e-12):
+                break
+    return np.clip(delta, -8 * _MAX_STEP, 8 * _MAX_STEP)
 
 
 def _gammas(net: Network, m: np.ndarray, t: np.ndarray, choice: ModelChoice) -> np.ndarray:
@@ -552,32 +588,48 @@ def _newton_step(net: Network, m: np.ndarray, tot: np.ndarray, totals: np.ndarra
                  unknown: np.ndarray, absent: np.ndarray, slope: np.ndarray) -> np.ndarray:
     """One damped Newton step on ln m of the unknown components, all samples at once.
 
-    The Jacobian of the balances at fixed γ, J_jk = Σ_i ν_ij ν_ik m_i, is one matrix product
-    for the whole batch. Activity coefficients move with the ionic strength: with
-    ``slope`` = ∂ln γ/∂I, ln m_i moves by e_i·dI/dx_k where e_i = Σ_k ν_ik ∂ln γ_k/∂I − ∂ln γ_i/∂I
-    and dI/dx_k = q_k/(1 − ½Σ_i z_i² m_i e_i), q_k = ½ Σ_i z_i² ν_ik m_i (the denominator is the
-    feedback of γ on I). This adds a rank-one term p qᵀ to J (p_j = Σ_i ν_ij m_i e_i) and keeps
-    the convergence quadratic where γ changes (exact for models of I alone, checked against
-    finite differences in the tests). An absent component's row and column
-    are zero (no species holds it) and get a unit diagonal, so every matrix is solvable.
-    Diagonal scaling keeps the stack well conditioned across twenty decades of concentration.
+    The Jacobian of the balances at fixed γ, A_jk = Σ_i ν_ij ν_ik m_i, is one matrix product
+    for the whole batch; it is symmetric and positive semi-definite. Activity coefficients
+    move with the ionic strength: with ``slope`` = ∂ln γ/∂I, ln m_i moves by e_i·dI/dx_k where
+    e_i = Σ_k ν_ik ∂ln γ_k/∂I − ∂ln γ_i/∂I and dI/dx_k = q_k/(1 − ½Σ_i z_i² m_i e_i),
+    q_k = ½ Σ_i z_i² ν_ik m_i (the denominator is the feedback of γ on I). The full Jacobian is
+    J = A + p qᵀ with p_j = Σ_i ν_ij m_i e_i, which keeps the convergence quadratic where γ
+    changes (exact for models of I alone, checked against finite differences in the tests);
+    it is solved by the Sherman–Morrison identity from A's solutions for r and p, so the
+    elimination runs on the symmetric A. Components that no formed species holds have a
+    diagonal row in A and are solved by a division, the others by elimination. An absent
+    component's row and column are zero (no species holds it) and get a unit diagonal, so
+    every matrix is solvable; diagonal scaling keeps the stack well conditioned across twenty
+    decades of concentration.
     """
     u = np.flatnonzero(unknown)
-    k = len(u)
     nu = net.nu[:, u]
-    jac = (_pairs(net, unknown).T @ m).reshape(k, k, -1)  # (k, k, N): samples last, contiguous
     fixed = absent[u].astype(float)  # (k, N)
-    diag = np.einsum("jjn->jn", jac)
-    diag += fixed + 1e-300
-    d = 1.0 / np.sqrt(diag)  # scaling from the fixed-γ diagonal, which is never negative
     me = m * _gamma_shift(net, slope, unknown)
     feedback = 1.0 - 0.5 * net.z2 @ me  # I moves γ, which moves I again: dI/dx = q / (1 − ½Σz²m e)
     q = (0.5 * (net.z2[:, None] * nu).T @ m) / np.maximum(feedback, 0.1)
-    jac += (nu.T @ me)[:, None, :] * q[None, :, :]
+    p = nu.T @ me
     r = (tot[u] - totals[u]) * (1.0 - fixed)
-    js = jac * d[:, None, :] * d[None, :, :]
-    js[np.arange(k), np.arange(k)] += 1e-13  # never singular
-    dx = -_solve_stack(js, r * d) * d
+    rhs = np.stack([r, p], axis=1)  # (k, 2, N): both right-hand sides through one elimination
+    sol = np.empty_like(rhs)
+    alone, coupled = _split(net, unknown)
+    if alone.size:
+        diag = (nu[:, alone] ** 2).T @ m + fixed[alone] + 1e-300
+        sol[alone] = rhs[alone] / diag[:, None, :]
+    if coupled.size:
+        kc = coupled.size
+        a = (_pairs(net, unknown, coupled).T @ m).reshape(kc, kc, -1)  # (k, k, N): samples last, contiguous
+        dg = np.einsum("jjn->jn", a)
+        dg += fixed[coupled] + 1e-300
+        d = 1.0 / np.sqrt(dg)
+        a *= d[:, None, :]
+        a *= d[None, :, :]
+        a[np.arange(kc), np.arange(kc)] += 1e-13  # never singular
+        sol[coupled] = _solve_stack(a, rhs[coupled] * d[:, None, :]) * d[:, None, :]
+    y, w = sol[:, 0], sol[:, 1]
+    den = 1.0 + np.einsum("kn,kn->n", q, w)
+    ok = np.abs(den) > 1e-8  # else the step at fixed γ
+    dx = -(y - w * np.where(ok, np.einsum("kn,kn->n", q, y) / np.where(ok, den, 1.0), 0.0))
     big = np.max(np.abs(dx), axis=0)
     dx *= np.minimum(1.0, _MAX_STEP / np.maximum(big, 1e-300))
     out = np.array(x)
@@ -592,33 +644,45 @@ def _gamma_shift(net: Network, slope: np.ndarray, unknown: np.ndarray) -> np.nda
 
 
 def _solve_stack(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-    """Solve a stack of small systems, a (k, k, N) and b (k, N) with the samples last.
+    """Solve a stack of small symmetric systems, a (k, k, N) and b (k, R, N), samples last.
 
     Gaussian elimination vectorised over the stack, faster than a LAPACK call per matrix
-    for k ≲ 10. The matrices are diagonally scaled Jacobians with a unit diagonal, so no
-    pivoting is needed as a rule; samples whose elimination breaks down (a non-finite
-    result) are solved again by the pseudo-inverse, which also gives singular ones a step.
+    for k ≲ 10; ``a`` is overwritten. The matrices are diagonally scaled symmetric positive
+    (semi-)definite Jacobians with a unit diagonal, so no pivoting is needed and only the
+    trailing block is updated (the eliminated column is not needed again). Samples whose
+    elimination breaks down (a non-finite result) are solved again by the pseudo-inverse,
+    which also gives singular ones a step.
     """
     k = b.shape[0]
-    u, y = np.array(a), np.array(b)
+    orig = a.copy()
+    y = np.array(b)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        for c in range(k):
-            f = u[c + 1:, c] / u[c, c]
-            u[c + 1:, c:] -= f[:, None, :] * u[None, c, c:]
-            y[c + 1:] -= f * y[c]
+        for c in range(k - 1):
+            f = a[c + 1:, c] / a[c, c]
+            a[c + 1:, c + 1:] -= f[:, None, :] * a[None, c, c + 1:]
+            y[c + 1:] -= f[:, None, :] * y[c][None]
         x = np.empty_like(y)
         for c in range(k - 1, -1, -1):
-            x[c] = (y[c] - np.einsum("jn,jn->n", u[c, c + 1:], x[c + 1:])) / u[c, c]
-    bad = ~np.all(np.isfinite(x), axis=0)
-    bad &= np.all(np.isfinite(a), axis=(0, 1)) & np.all(np.isfinite(b), axis=0)
+            x[c] = (y[c] - np.einsum("jn,jrn->rn", a[c, c + 1:], x[c + 1:])) / a[c, c]
+    bad = ~np.all(np.isfinite(x), axis=(0, 1))
+    bad &= np.all(np.isfinite(orig), axis=(0, 1)) & np.all(np.isfinite(b), axis=(0, 1))
     if np.any(bad):  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
-        x[:, bad] = (np.linalg.pinv(a[:, :, bad].transpose(2, 0, 1)) @ b[:, bad].T[..., None])[..., 0].T
+        x[:, :, bad] = np.einsum("nij,jrn->irn", np.linalg.pinv(orig[:, :, bad].transpose(2, 0, 1)), b[:, :, bad])
     return np.nan_to_num(x, nan=0.0, posinf=0.0, neginf=0.0)
 
 
-def _pairs(net: Network, unknown: np.ndarray) -> np.ndarray:
-    """ν_ij ν_ik over the unknown components for every species, flattened to (n_species, k²)."""
-    nu = net.nu[:, unknown]
+def _split(net: Network, unknown: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Positions among the unknown components of those no formed species holds (their row of
+    the Jacobian at fixed γ is diagonal) and of the others."""
+    n_c = len(net.components)
+    held = np.any(net.nu[n_c:, unknown] != 0, axis=0)
+    return np.flatnonzero(~held), np.flatnonzero(held)
+
+
+def _pairs(net: Network, unknown: np.ndarray, which: np.ndarray) -> np.ndarray:
+    """ν_ij ν_ik over the unknown components at positions ``which`` for every species,
+    flattened to (n_species, k²)."""
+    nu = net.nu[:, unknown][:, which]
     return (nu[:, :, None] * nu[:, None, :]).reshape(len(net.species), -1)
 
 
@@ -871,7 +935,37 @@ def _resolve(net: Network, m_in: np.ndarray, t: np.ndarray, name: str, opts: Any
 def _solve(net: Network, m_in: np.ndarray, t: np.ndarray, choice: ModelChoice, ph: np.ndarray | None,
            max_iterations: int) -> State:
     totals = net.input_nu.T @ m_in
-    return equilibrate(net, totals, t, choice, ph=ph, max_iterations=max_iterations)
+    return equilibrate(net, totals, t, choice, ph=ph, max_iterations=max_iterations,
+                       start=_start_from_inputs(net, m_in, totals, t, ph))
+
+
+def _start_from_inputs(net: Network, m_in: np.ndarray, totals: np.ndarray, t: np.ndarray,
+                       ph: np.ndarray | None) -> np.ndarray:
+    """ln m of the components to start from: each input species present at its own amount.
+
+    A component given only inside an input species (carbonate in HCO3-, phosphate in
+    H2PO4-) starts where that species holds its total at the held or a neutral pH, not at
+    the total itself, which would put the species many decades too high and cost the
+    solver its first iterations. Every other component starts at its total.
+    """
+    n_c = len(net.components)
+    la = np.log10(np.maximum(totals, 1e-300))
+    la[net.h] = -7.0 if ph is None else -np.asarray(ph, dtype=float)
+    given = {net.names.index(n) for n in net.inputs if n in net.names}
+    logk = net.log_k_at(t)
+    picked = np.full(la.shape, -np.inf)
+    for r, name in enumerate(net.inputs):
+        i = net.names.index(name) if name in net.names else -1
+        row = net.input_nu[r]
+        held = [j for j in np.flatnonzero(row) if j != net.h]
+        if i < n_c or len(held) != 1 or held[0] in given or row[held[0]] <= 0:
+            continue
+        j = held[0]
+        with np.errstate(divide="ignore"):
+            cand = (np.log10(m_in[r]) - logk[i] - row[net.h] * la[net.h]) / row[j]
+        picked[j] = np.maximum(picked[j], np.minimum(cand, la[j]))
+    la = np.where(np.isfinite(picked), picked, la)
+    return np.asarray(np.where((totals > _NOTHING) | (np.arange(n_c) == net.h)[:, None], LN10 * la, -700.0))
 
 
 def _result(net: Network, state: State, shape: tuple[int, ...], t: np.ndarray,

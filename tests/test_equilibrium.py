@@ -197,21 +197,27 @@ def test_ph_of_a_composition():
     assert ph == pytest.approx(3.38, abs=0.02)
 
 
-def test_newton_jacobian_matches_finite_differences():
+@pytest.mark.parametrize(("inputs", "free"), [
+    (["K+", "H2PO4-", "Na+", "HPO4^2-"], [1e-7, 0.025, 1e-7, 0.05]),  # H+, K+, PO4^3-, Na+
+    (["Mg^2+", "SO4^2-", "Cl-", "Br-"], [1e-7, 0.02, 0.03, 0.04, 0.001]),  # H+, Mg, SO4, Cl and Br held by nothing
+])
+def test_newton_jacobian_matches_finite_differences(inputs, free):
     # the solver's Jacobian (fixed-γ part plus the rank-one γ(I) term with its feedback) equals
-    # central differences of the balances with γ iterated to self-consistency (Davies: γ of I alone)
+    # central differences of the balances with γ iterated to self-consistency (Davies: γ of I alone);
+    # the second network has components no species holds, which the solver treats by division
     from ionact.equilibrium import _gammas, _gammas_and_slopes, _molalities, _newton_step, network_for
     from ionact.models.registry import Batch
     from ionact.models.resolver import choice_for, resolve_model
     from ionact.species import resolve_ion
 
-    net = network_for([resolve_ion(n) for n in ["K+", "H2PO4-", "Na+", "HPO4^2-"]])
+    net = network_for([resolve_ion(n) for n in inputs])
     n_c, n_s = len(net.components), len(net.species)
     t = np.array([25.0])
     name, opts, fb = choice_for("davies")
     choice = resolve_model(Batch.of(net.species, np.full((n_s, 1), 0.01), t), name, options=opts, fallback=fb)
     logk, alive = net.log_k_at(t), np.ones((n_s, 1))
-    x = np.log(np.array([[1e-7], [0.025], [1e-7], [0.05]]))  # H+, K+, PO4^3-, Na+ free (pH ≈ 7)
+    assert len(free) == n_c
+    x = np.log(np.array(free))[:, None]  # free molalities of the components (pH ≈ 7)
 
     def balances(x):
         lg = np.zeros((n_s, 1))
@@ -225,7 +231,7 @@ def test_newton_jacobian_matches_finite_differences():
                                for h in np.eye(n_c)[:, :, None] * 1e-6])
     _, slope = _gammas_and_slopes(net, m, t, 0.5 * net.z2 @ m, choice)
     # one Newton step from x towards totals tot + J·dx must be dx, for a chosen dx
-    dx = np.array([[0.01], [-0.02], [0.015], [0.005]])
+    dx = np.array([[0.01], [-0.02], [0.015], [0.005], [-0.01]])[:n_c]
     step = _newton_step(net, m, tot, tot + numeric @ dx, x, np.ones(n_c, dtype=bool),
                         np.zeros((n_c, 1), dtype=bool), slope) - x
     assert step[:, 0] == pytest.approx(dx[:, 0], rel=1e-5)
