@@ -664,9 +664,9 @@ def _solve_stack(a: np.ndarray, b: np.ndarray) -> np.ndarray:
         x = np.empty_like(y)
         for c in range(k - 1, -1, -1):
             x[c] = (y[c] - np.einsum("jn,jrn->rn", a[c, c + 1:], x[c + 1:])) / a[c, c]
-    bad = ~np.all(np.isfinite(x), axis=(0, 1))
-    bad &= np.all(np.isfinite(orig), axis=(0, 1)) & np.all(np.isfinite(b), axis=(0, 1))
-    if np.any(bad):  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
+    bad = np.flatnonzero(~np.all(np.isfinite(x), axis=(0, 1)))
+    if bad.size:  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
+        bad = bad[np.all(np.isfinite(orig[:, :, bad]), axis=(0, 1)) & np.all(np.isfinite(b[:, :, bad]), axis=(0, 1))]
         x[:, :, bad] = np.einsum("nij,jrn->irn", np.linalg.pinv(orig[:, :, bad].transpose(2, 0, 1)), b[:, :, bad])
     return np.nan_to_num(x, nan=0.0, posinf=0.0, neginf=0.0)
 
