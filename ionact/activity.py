@@ -164,6 +164,7 @@ def activity_coefficients(
     Parameters
     ----------
     solution : Solution
+        The solution or batch (molal amounts, temperature, density model).
     model : str
         "limiting", "extended", "guntelberg", "davies", "truesdell-jones", "b-dot",
         "bates-guggenheim", "sit", "pitzer", or "auto" (the most accurate model whose
@@ -201,12 +202,22 @@ def activity_coefficients(
         A parameter the model needs is not tabulated and ``missing="error"``.
     ValidityRangeError
         In strict mode, when the ionic strength is outside the model's range.
+    UnknownSpeciesError
+        An unknown model name.
 
     Warns
     -----
     ValidityRangeWarning
         The ionic strength is outside the model's range, or the temperature outside the
         range of 25 °C parameters.
+
+    References
+    ----------
+    The models and their sources: :mod:`ionact.models` (Debye and Hückel 1923; Davies 1962;
+    Truesdell and Jones 1974; Helgeson 1969); SIT: I. Grenthe, A. V. Plyasunov and
+    K. Spahiu, in *Modelling in Aquatic Chemistry*, OECD NEA (1997), ch. IX; Pitzer:
+    K. S. Pitzer, *Activity Coefficients in Electrolyte Solutions*, 2nd ed., CRC (1991),
+    and Harvie, Møller and Weare, Geochim. Cosmochim. Acta 48 (1984) 723.
 
     Examples
     --------
@@ -279,6 +290,34 @@ def mean_activity_coefficient(solution: Solution, salt: str, model: str = "auto"
     (trace γ). For Pitzer the mean value is convention-free; for the Debye–Hückel family it
     follows from the model's charge-symmetric single-ion form.
 
+    Parameters
+    ----------
+    solution : Solution
+        The solution (or batch), molal amounts.
+    salt : str
+        The salt's formula, e.g. "NaCl", "MgSO4".
+    model : str
+        Activity model name or "auto".
+    **options
+        Passed to :func:`activity_coefficients` (``missing``, ``sizes``, ``equilibrium`` …).
+
+    Returns
+    -------
+    MeanActivityCoefficient
+        γ± (dimensionless; a float-like record, or an array for a batch) with the model used.
+
+    Raises
+    ------
+    UnknownSpeciesError
+        A salt that is not a formula of known ions.
+    MissingParameterError
+        The model lacks a parameter and ``missing="error"``.
+
+    References
+    ----------
+    R. A. Robinson and R. H. Stokes, *Electrolyte Solutions*, 2nd ed. (1959), ch. 2
+    (definition of γ±).
+
     Examples
     --------
     >>> import ionact as ia
@@ -325,6 +364,32 @@ def _pitzer_for(solution: Solution, missing: str = "error"):
 def osmotic_coefficient(solution: Solution, model: str = "pitzer", missing: str = "error"):
     """Osmotic coefficient φ of a solution (Pitzer model).
 
+    Parameters
+    ----------
+    solution : Solution
+        The solution (or batch), molal amounts.
+    model : {"pitzer"}
+        Only Pitzer gives φ here.
+    missing : str
+        "error" or "zero" for missing Pitzer parameters.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        φ, dimensionless.
+
+    Raises
+    ------
+    InputError
+        A model other than Pitzer.
+    MissingParameterError
+        Pitzer parameters missing and ``missing="error"``.
+
+    References
+    ----------
+    K. S. Pitzer, *Activity Coefficients in Electrolyte Solutions*, 2nd ed., CRC (1991),
+    ch. 3; Harvie, Møller and Weare, Geochim. Cosmochim. Acta 48 (1984) 723.
+
     Examples
     --------
     >>> import ionact as ia
@@ -339,6 +404,32 @@ def osmotic_coefficient(solution: Solution, model: str = "pitzer", missing: str 
 
 def water_activity(solution: Solution, model: str = "pitzer", missing: str = "error"):
     """Activity of water, ln a_w = −φ M_w Σ m_i (Pitzer model).
+
+    Parameters
+    ----------
+    solution : Solution
+        The solution (or batch), molal amounts.
+    model : {"pitzer"}
+        Only Pitzer gives φ here.
+    missing : str
+        "error" or "zero" for missing Pitzer parameters.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        a_w, dimensionless (mole-fraction scale).
+
+    Raises
+    ------
+    InputError
+        A model other than Pitzer.
+    MissingParameterError
+        Pitzer parameters missing and ``missing="error"``.
+
+    References
+    ----------
+    R. A. Robinson and R. H. Stokes, *Electrolyte Solutions*, 2nd ed. (1959), ch. 2
+    (a_w from φ); Pitzer (1991), ch. 3.
 
     Examples
     --------
@@ -399,6 +490,26 @@ def compare_models(solution: Solution, models=None, **options) -> ModelCompariso
     Models that lack parameters are listed in ``skipped`` with the reason; models used
     outside their range are computed without a warning but flagged in ``in_range`` and
     excluded from the spread.
+
+    Parameters
+    ----------
+    solution : Solution
+        The solution (or batch), molal amounts.
+    models : sequence of str, optional
+        Model names (default every registered model).
+    **options
+        Passed to each model (``sizes``, ``davies_coefficient`` …).
+
+    Returns
+    -------
+    ModelComparison
+        γ of every ion by every model, whether each is in range, the skipped models, and the
+        spread (max − min of γ over the models in range) per ion.
+
+    Raises
+    ------
+    UnknownSpeciesError
+        An unknown model name.
 
     Examples
     --------

@@ -310,6 +310,8 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
         Activity model name, or "auto" (chosen for the converged ionic strength).
     temperature : float, optional
         °C; the matrix's own temperature when a matrix is given, else 25 °C.
+    missing : str
+        "error", "zero", or a fallback model name, when the model lacks a parameter.
     equilibrium : bool, optional
         Speciate the final solution (True, False, or None: where its ions associate); the
         activity is then that of the *free* analyte, and the result gives its free fraction.
@@ -317,6 +319,9 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
         Held during speciation (default: solved from the proton balance).
     species : iterable of Complex, optional
         Extra species (complexing agents) for the equilibrium.
+    density : None, float or "water", optional
+        How the result's molality becomes mol/L: the density model (default), a density
+        in kg/L, or pure water's.
     **model_options
         Passed to the model (sizes, davies_coefficient, …).
 
@@ -331,6 +336,11 @@ def concentration_from_activity(analyte, activity, *, matrix: Solution | None = 
         Activity ≤ 0 or not finite, a counter-ion of the wrong sign, an analyte already in
         the matrix, or an activity no concentration reaches under the model (the message
         gives the largest reachable activity).
+
+    References
+    ----------
+    IUPAC, *Quantities, Units and Symbols in Physical Chemistry*, 3rd ed. (2007), §2.11
+    (activity on the molality scale); the activity models in :mod:`ionact.models`.
 
     Examples
     --------
@@ -381,10 +391,52 @@ def activity_from_concentration(analyte, amount, *, matrix: Solution | None = No
 
     Parameters
     ----------
+    analyte : str or Ion
+        The analyte, e.g. "F-", "NO3-", "Ca^2+".
     amount : float, array_like, str or Quantity
         Bare numbers are mol/kg; strings such as "0.5 mmol/L", "19 mg/L", "10 mg/L as N".
-        Molar amounts are converted with the density model of the final solution (or
-        ``density=``: kg/L, or "water").
+        Molar amounts are converted with the density model of the final solution.
+    matrix : Solution, optional
+        The background without the analyte; pure water when omitted.
+    counter_ion : str, optional
+        The ion that accompanies the analyte (default Cl- for a cation, Na+ for an anion).
+    model : str
+        Activity model name, or "auto".
+    temperature : float, optional
+        °C; the matrix's own temperature when a matrix is given, else 25 °C.
+    density : None, float or "water", optional
+        How molar amounts become molal: the density model (default), a density in kg/L, or
+        pure water's.
+    missing : str
+        "error", "zero", or a fallback model name, when the model lacks a parameter.
+    equilibrium : bool, optional
+        Speciate the final solution (True, False, or None: where its ions associate); the
+        activity is then that of the *free* analyte.
+    pH : float, optional
+        Held during speciation (default: solved from the proton balance).
+    species : iterable of Complex, optional
+        Extra species (complexing agents) for the equilibrium.
+    **model_options
+        Passed to the model (sizes, davies_coefficient, …).
+
+    Returns
+    -------
+    ActivityConversion
+        ``.activity`` (molal scale), γ, molality (mol/kg), ionic strength, free fraction,
+        model and notes.
+
+    Raises
+    ------
+    InputError
+        A negative or non-finite amount, a counter-ion of the wrong sign, an analyte already
+        in the matrix.
+    UnitError
+        An amount with an unknown unit.
+
+    References
+    ----------
+    IUPAC, *Quantities, Units and Symbols in Physical Chemistry*, 3rd ed. (2007), §2.11
+    (activity on the molality scale).
 
     Examples
     --------
@@ -421,6 +473,25 @@ def activity_from_concentration(analyte, amount, *, matrix: Solution | None = No
 def activity_from_px(px):
     """Activity from pX = −log10 a.
 
+    Parameters
+    ----------
+    px : float or array_like
+        pX, dimensionless (any finite value).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        a = 10^(−pX), molal scale.
+
+    Raises
+    ------
+    InputError
+        A pX that is not a finite number.
+
+    References
+    ----------
+    IUPAC (2007), §2.13 (p-functions).
+
     Examples
     --------
     >>> activity_from_px(3.0)
@@ -434,7 +505,26 @@ def activity_from_px(px):
 
 
 def px_from_activity(activity):
-    """pX = −log10 a for a > 0.
+    """pX = −log10 a, for an activity a > 0.
+
+    Parameters
+    ----------
+    activity : float or array_like
+        a, molal scale (> 0).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        pX, dimensionless.
+
+    Raises
+    ------
+    InputError
+        An activity that is not positive and finite.
+
+    References
+    ----------
+    IUPAC (2007), §2.13 (p-functions).
 
     Examples
     --------
@@ -466,9 +556,42 @@ def standard_for_activity(salt: str, analyte: str, activity, *, matrix: Solution
                           temperature=None, **model_options) -> StandardRecipe:
     """The salt amount that gives a standard of the wanted activity of one of its ions.
 
+    Parameters
+    ----------
+    salt : str
+        The standard's salt, e.g. "NaF".
+    analyte : str
+        The ion of the salt whose activity is wanted, e.g. "F-".
+    activity : float
+        The wanted activity (molal scale, > 0).
+    matrix : Solution, optional
+        A background the standard is made up in (pure water when None).
+    model : str
+        Activity model name, or "auto".
+    temperature : float, optional
+        °C (default 25 °C, or the matrix's).
+    **model_options
+        Passed to the model.
+
+    Returns
+    -------
+    StandardRecipe
+        Salt molality (mol/kg), grams per kg of water and per litre, γ and the model.
+
+    Raises
+    ------
+    InputError
+        A salt that does not contain the analyte, or an activity no amount of it reaches.
+
+    References
+    ----------
+    IUPAC (2007), §2.11 (activity on the molality scale); preparing standards of known
+    activity is common practice.
+
     Examples
     --------
-    >>> r = standard_for_activity("NaF", "F-", 1e-3, model="davies")
+    >>> import ionact as ia
+    >>> r = ia.standard_for_activity("NaF", "F-", 1e-3, model="davies")
     >>> round(r.salt_molality * 1e3, 4), round(r.grams_per_kg_water, 4)
     (1.0377, 0.0436)
     """

@@ -41,14 +41,24 @@ def nernst_slope(charge: object = 1, temperature: object = 25.0) -> float | np.n
     Parameters
     ----------
     charge : int or array_like
-        Signed charge number of the measured ion (not zero).
-    temperature : float or array_like
-        °C.
+        Signed charge number of the measured ion (not zero), dimensionless.
+    temperature : float, array_like, str or pint.Quantity
+        °C for bare numbers.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Slope, mV per decade (59.16 mV at 25 °C for z = +1; negative for anions).
 
     Raises
     ------
     InputError
-        A charge of zero.
+        A charge of zero or not a number, or a temperature outside liquid water's range.
+
+    References
+    ----------
+    CODATA 2018 values of R and F; the Nernst equation as in IUPAC, *Quantities, Units and
+    Symbols in Physical Chemistry* (2007).
 
     Examples
     --------
@@ -74,6 +84,29 @@ def mv_to_relative_error(mv, charge, temperature=25.0):
 
     ratio = 10^(ΔE / (S/z)); returns ratio − 1.
 
+    Parameters
+    ----------
+    mv : float or array_like
+        Potential error ΔE, mV.
+    charge : int or array_like
+        Signed charge number of the measured ion, dimensionless.
+    temperature : float, array_like, str or pint.Quantity
+        °C for bare numbers.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Relative error as a fraction (0.0397 = 3.97 %).
+
+    Raises
+    ------
+    InputError
+        A charge of zero, or a temperature outside liquid water's range.
+
+    References
+    ----------
+    The Nernst equation; "1 mV ≈ 4 % for a monovalent ion" is common practice.
+
     Examples
     --------
     >>> round(mv_to_relative_error(1.0, 1) * 100, 2)   # 1 mV ≈ 3.9 % for z = 1 (common practice)
@@ -87,6 +120,30 @@ def mv_to_relative_error(mv, charge, temperature=25.0):
 
 def relative_error_to_mv(relative_error, charge, temperature=25.0):
     """Potential error (mV) equivalent to a relative error in activity: (S/z)·log10(1 + e).
+
+    Parameters
+    ----------
+    relative_error : float or array_like
+        Relative error as a fraction (> −1).
+    charge : int or array_like
+        Signed charge number of the measured ion, dimensionless.
+    temperature : float, array_like, str or pint.Quantity
+        °C for bare numbers.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Potential error, mV.
+
+    Raises
+    ------
+    InputError
+        A relative error at or below −1, a charge of zero, or a temperature outside liquid
+        water's range.
+
+    References
+    ----------
+    The Nernst equation (see :func:`nernst_slope`).
 
     Examples
     --------
@@ -120,12 +177,34 @@ def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple],
     Parameters
     ----------
     analyte : str
-        The electrode's primary ion (the analyte).
+        The electrode's primary ion (the analyte), e.g. "NO3-".
     activity : float or array_like
-        Its activity (> 0).
+        Its activity (> 0), molal scale.
     interferents : mapping
         Ion -> (activity, K_ij): the interferent's activity and the caller's selectivity
-        coefficient for this electrode (they are electrode-specific; ionact ships none).
+        coefficient for this electrode, dimensionless (they are electrode-specific; ionact
+        ships none).
+    temperature : float, array_like, str or pint.Quantity
+        °C for bare numbers (sets the slope of the bias in mV).
+
+    Returns
+    -------
+    NikolskyResult
+        Apparent activity, relative bias (fraction), bias in mV and each interferent's
+        contribution.
+
+    Raises
+    ------
+    InputError
+        A neutral analyte, an interferent of the other sign of charge, a negative or
+        non-finite activity or selectivity coefficient, or a malformed interferent entry.
+    UnknownSpeciesError
+        An ion name that is not known.
+
+    References
+    ----------
+    E. Bakker, E. Pretsch and P. Bühlmann, Anal. Chem. 72 (2000) 1127; Y. Umezawa et al.,
+    Pure Appl. Chem. 72 (2000) 1851 (IUPAC report on selectivity coefficients; from memory).
 
     Examples
     --------
@@ -204,9 +283,39 @@ def temperature_error(activity, charge, *, calibration_temperature, measurement_
     ``isopotential_activity`` (default 1 mol/kg, i.e. E° independent of temperature):
     E(T) = E_iso + (S(T)/z) log10(a/a_iso). Reading a T2 potential with the T1 line gives
     log10(a_read/a_iso) = (S2/S1) log10(a/a_iso). A concentration calibration also carries
-    γ(T1); the sample has γ(T2) at the same ionic strength (by ``model``: "davies" or any
-    low-level model name that takes (z, I, T)), so reported/true concentration is
-    (a_read/a) · γ(T2)/γ(T1).
+    γ(T1); the sample has γ(T2) at the same ionic strength (by ``model``), so reported/true
+    concentration is (a_read/a) · γ(T2)/γ(T1).
+
+    Parameters
+    ----------
+    activity : float or array_like
+        The sample's activity (> 0), molal scale.
+    charge : int
+        Signed charge number of the measured ion.
+    calibration_temperature, measurement_temperature : float, str or pint.Quantity
+        °C for bare numbers.
+    ionic_strength : float or array_like
+        The sample's ionic strength, mol/kg.
+    isopotential_activity : float
+        Activity at the isothermal intersection, molal scale (> 0).
+    model : {"davies", "limiting", "guntelberg"}
+        The activity model for γ(T1) and γ(T2).
+
+    Returns
+    -------
+    TemperatureError
+        Slope ratio, activity and γ ratios, reported/true concentration, error in % and mV.
+
+    Raises
+    ------
+    InputError
+        A non-positive activity or isopotential activity, a charge of zero, an unknown model,
+        or a temperature outside liquid water's range.
+
+    References
+    ----------
+    R. G. Bates, *Determination of pH*, 2nd ed., Wiley (1973), ch. 10 (isothermal
+    intersection, from memory).
 
     Examples
     --------

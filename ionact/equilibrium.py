@@ -865,10 +865,16 @@ def speciate(solution: Any, *, pH: Any = None, model: str = "auto", temperature:
         Solid formula -> log10 Ksp, added to (or overriding) the table's.
     missing : str
         Missing model parameters: "error", "zero", or a fallback model name.
+    max_iterations : int
+        Newton iterations allowed per sample before it is reported as not converged.
+    **model_options
+        Passed to the activity model (sizes, davies_coefficient, …).
 
     Returns
     -------
     Speciation
+        Molalities (mol/kg), activities and γ of every species, ionic strength, pH,
+        saturation indices, each component's fractions, iterations and per-sample status.
 
     Raises
     ------
@@ -877,6 +883,14 @@ def speciate(solution: Any, *, pH: Any = None, model: str = "auto", temperature:
         sample in ``status`` instead and keeps every row.
     InputError, UnknownSpeciesError
         A pH outside 0–14, a non-finite constant, an unknown species.
+
+    References
+    ----------
+    F. M. M. Morel and J. G. Hering, *Principles and Applications of Aquatic Chemistry*,
+    Wiley (1993), ch. 2 (the tableau); F. M. M. Morel and J. J. Morgan, Environ. Sci.
+    Technol. 6 (1972) 58 (Newton on the free components); J. Carrayrou, R. Mosé and
+    P. Behra, AIChE J. 48 (2002) 894 (the positive continued fraction start); formation
+    constants from the compilations named in each table row (all from memory).
 
     Examples
     --------
@@ -1019,6 +1033,32 @@ def _statuses(net: Network, state: State) -> tuple[list[str], list[str]]:
 
 def ph_of(solution: Any, *, model: str = "auto", **kwargs: Any) -> float | np.ndarray:
     """pH (activity scale) of a composition from its proton balance, amphiprotic species included.
+
+    Parameters
+    ----------
+    solution : Solution
+        Totals of the composition (acids, bases and salts as given).
+    model : str
+        Activity model or "auto".
+    **kwargs
+        Passed to :func:`speciate` (``temperature``, ``species``, ``missing`` …).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        pH = −log10 a(H+), one per sample.
+
+    Raises
+    ------
+    ConvergenceError
+        A single solution whose proton balance does not close.
+    InputError
+        An unknown species or a bad constant.
+
+    References
+    ----------
+    F. M. M. Morel and J. G. Hering, *Principles and Applications of Aquatic Chemistry*,
+    Wiley (1993), ch. 3 (the proton balance; from memory).
 
     Examples
     --------

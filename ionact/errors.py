@@ -106,6 +106,22 @@ def is_strict() -> bool:
 def strict(enabled: bool = True) -> Iterator[None]:
     """Turn :class:`ValidityRangeWarning` into :class:`ValidityRangeError` inside the block.
 
+    Parameters
+    ----------
+    enabled : bool
+        True to make range problems errors inside the block; False to keep them warnings
+        (e.g. inside an outer strict block).
+
+    Yields
+    ------
+    None
+        The block runs with the setting; the previous one returns after it.
+
+    Raises
+    ------
+    ValidityRangeError
+        Inside the block, wherever ionact would otherwise warn about a validity range.
+
     Examples
     --------
     >>> import ionact as ia

@@ -105,10 +105,27 @@ def ionic_strength_from_conductivity(conductivity, rule: str = "russell") -> Ion
         I ≈ 1.6e-5 × EC (Russell 1976) or I ≈ 1.3e-5 × EC (Griffin & Jurinak 1973);
         rules of thumb for fresh waters.
 
+    Returns
+    -------
+    IonicStrengthEstimate
+        I in mol/kg (float or array), the rule, its coefficient and source.
+
+    Raises
+    ------
+    InputError
+        A negative or non-finite conductivity, or an unknown rule.
+    UnitError
+        A unit that is not a conductivity.
+
     Warns
     -----
     ValidityRangeWarning
         Above 5000 µS/cm (common practice: no longer a fresh water).
+
+    References
+    ----------
+    L. L. Russell, PhD thesis, University of California, Berkeley (1976); R. A. Griffin and
+    J. J. Jurinak, Soil Sci. 116 (1973) 26 (both from memory).
 
     Examples
     --------
@@ -120,9 +137,30 @@ def ionic_strength_from_conductivity(conductivity, rule: str = "russell") -> Ion
 
 
 def ionic_strength_from_tds(tds, rule: str = "langelier") -> IonicStrengthEstimate:
-    """Estimate ionic strength from total dissolved solids: I ≈ 2.5e-5 × TDS in mg/L (Langelier 1936).
+    """Estimate ionic strength from total dissolved solids: I ≈ 2.5e-5 × TDS in mg/L.
 
-    ``tds`` is mg/L for bare numbers; unit strings ("1.2 g/L") and Quantities are converted.
+    Parameters
+    ----------
+    tds : float, array_like, str or pint.Quantity
+        mg/L for bare numbers; unit strings ("1.2 g/L") and Quantities are converted.
+    rule : {"langelier"}
+        The rule of thumb (Langelier 1936).
+
+    Returns
+    -------
+    IonicStrengthEstimate
+        I in mol/kg (float or array), the rule, its coefficient and source.
+
+    Raises
+    ------
+    InputError
+        A negative or non-finite value, or an unknown rule.
+    UnitError
+        A unit that is not a mass concentration.
+
+    References
+    ----------
+    W. F. Langelier, J. Am. Water Works Assoc. 28 (1936) 1500 (from memory).
 
     Examples
     --------

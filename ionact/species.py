@@ -364,6 +364,16 @@ def register_ion(ion: Ion) -> Ion:
     them (``Salt.parse(..., ions=...)``) and solutions can name them. Models that need
     ion-specific parameters will report them missing unless the :class:`Ion` carries them.
 
+    Parameters
+    ----------
+    ion : Ion
+        The species, with its formula, charge and molar mass (g/mol).
+
+    Returns
+    -------
+    Ion
+        The registered ion (the same object).
+
     Raises
     ------
     InputError

@@ -231,6 +231,7 @@ def parse_amount(value: object, ion: Ion | str | None = None, default_basis: str
     ion : Ion or str, optional
         Needed for mass and equivalent units.
     default_basis : {"molal", "molar"}
+        The basis of bare numbers: mol/kg of water or mol/L of solution.
     molar_mass : float, optional
         g/mol for mass units when the amount is of a salt rather than of ``ion``.
     what : str, optional
@@ -239,6 +240,7 @@ def parse_amount(value: object, ion: Ion | str | None = None, default_basis: str
     Returns
     -------
     Amount
+        The value in mol/kg (basis "molal") or mol/L (basis "molar"), with the unit read.
 
     Raises
     ------
@@ -333,8 +335,25 @@ def convert_amount(value: object, from_basis: str, unit: str, ion: Ion | str | N
     """Express an amount given in mol/kg (``from_basis="molal"``) or mol/L in ``unit``.
 
     Any unit that :func:`parse_amount` accepts can be asked for ("mmol/L", "mM", "g/L",
-    "nmol/L", "mg/kg", "meq/L", "mg/L as N" …). ``water_per_litre`` (kg of water per litre
-    of solution) converts between the bases; it is required when they differ.
+    "nmol/L", "mg/kg", "meq/L", "mg/L as N" …).
+
+    Parameters
+    ----------
+    value : float or array_like
+        The amount, mol/kg or mol/L according to ``from_basis``.
+    from_basis : {"molal", "molar"}
+        The basis of ``value``.
+    unit : str
+        The unit wanted.
+    ion : Ion or str, optional
+        The species; needed for mass and equivalent units.
+    water_per_litre : float or array_like, optional
+        kg of water per litre of solution; required when the bases differ.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        The amount in ``unit``.
 
     Raises
     ------
@@ -383,9 +402,24 @@ def convert_amount(value: object, from_basis: str, unit: str, ion: Ion | str | N
 
 
 def parse_scalar(value: object, unit: str, what: str) -> float:
-    """A finite number in ``unit``: a bare number is taken in ``unit``; a string "number unit"
-    (by the same strict grammar) or a pint Quantity is converted into it ("0.85 mS/cm" for
-    unit "uS/cm" gives 850).
+    """A finite number in ``unit`` from a number, a "number unit" string or a Quantity.
+
+    A bare number is taken in ``unit``; a string (by the same strict grammar as
+    :func:`parse_amount`) or a pint Quantity is converted into it.
+
+    Parameters
+    ----------
+    value : float, str or pint.Quantity
+        The quantity.
+    unit : str
+        The unit to express it in (a pint unit string, e.g. "uS/cm").
+    what : str
+        How to name the value in messages.
+
+    Returns
+    -------
+    float
+        The value in ``unit``.
 
     Raises
     ------
@@ -393,6 +427,11 @@ def parse_scalar(value: object, unit: str, what: str) -> float:
         Not a finite number (booleans included), a decimal comma, arithmetic.
     UnitError
         A unit that is unknown or cannot be converted to ``unit``.
+
+    Examples
+    --------
+    >>> parse_scalar("0.85 mS/cm", "uS/cm", "conductivity")
+    850.0
     """
     if isinstance(value, bool | np.bool_):
         raise InputError(f"{what} {value!r} is not a number")
@@ -440,15 +479,52 @@ def _unit_factor(u: str, unit: str, original: object, what: str) -> float:
 
 
 def format_amount(value: float, unit: str) -> str:
-    """Format a number with its unit for reports (4 significant digits)."""
+    """Format a number with its unit for reports (4 significant digits).
+
+    Parameters
+    ----------
+    value : float
+        The number, in ``unit``.
+    unit : str
+        The unit label printed after it.
+
+    Returns
+    -------
+    str
+        "value unit"; a non-finite value is printed as is ("nan mol/L").
+
+    Raises
+    ------
+    TypeError
+        A value that is not a real number.
+
+    Examples
+    --------
+    >>> format_amount(0.0012345, "mol/L")
+    '0.001234 mol/L'
+    """
     if not math.isfinite(value):
         return f"{value} {unit}"
     return f"{value:.4g} {unit}"
 
 
 def temperature_celsius(value: object, what: str = "temperature") -> float | np.ndarray:
-    """A temperature in °C: numbers (and arrays) are °C; a string "25 degC", "77 degF",
-    "298.15 K" or a pint Quantity is converted (offset units handled).
+    """A temperature in °C from a number, a "number unit" string or a Quantity.
+
+    Numbers (and arrays) are °C; a string "25 degC", "77 degF", "298.15 K" or a pint
+    Quantity is converted (offset units handled).
+
+    Parameters
+    ----------
+    value : float, array_like, str or pint.Quantity
+        The temperature.
+    what : str
+        How to name it in messages.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        °C.
 
     Raises
     ------
@@ -456,6 +532,11 @@ def temperature_celsius(value: object, what: str = "temperature") -> float | np.
         Booleans, text that is not one number and one temperature unit.
     UnitError
         A unit that is not a temperature.
+
+    Examples
+    --------
+    >>> round(temperature_celsius("77 degF"), 6)
+    25.0
     """
     if isinstance(value, bool | np.bool_):
         raise InputError(f"{what} {value!r} is not a number")

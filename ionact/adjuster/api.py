@@ -268,6 +268,8 @@ def design_adjuster(
         Stock volume per sample volume (0.02 = 2 mL per 100 mL), 0 < ratio ≤ 10; the start
         for ``solve="ratio"``.
     solve : {"stock", "ratio", "none"}
+        What to find: the smallest stock strength, the smallest volume ratio, or nothing
+        (evaluate the design as given).
     buffer : Buffer, optional
         A pH buffer pair in the stock, solved for the target pH at each design point.
     electrode : Electrode, optional
@@ -304,6 +306,8 @@ def design_adjuster(
     Returns
     -------
     AdjusterDesign
+        The stock and ratio, the worst residual error (mV and %) and where it occurs, the
+        model and its reason, every check with its status, and the recipe.
 
     Raises
     ------

@@ -89,6 +89,27 @@ def compare_adjusters(candidates: Mapping[str, Any], **job: Any) -> AdjusterComp
         Name -> stock (as :func:`~ionact.design_adjuster` takes it).
     **job
         Everything else :func:`~ionact.design_adjuster` takes (``solve`` defaults to "stock").
+
+    Returns
+    -------
+    AdjusterComparison
+        One row per candidate (feasible, total stock mol/L, saturation, worst error mV,
+        interference, what was not assessed), the designs, and the best fully assessed one.
+
+    Raises
+    ------
+    InputError
+        An empty or malformed mapping of candidates, or a job argument that
+        :func:`~ionact.design_adjuster` refuses.
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> c = ia.compare_adjusters({"A": {"(NH4)2SO4": 2.0}, "B": {"Na2SO4": 1.0}}, analyte="NO3-",
+    ...                          samples=ia.SamplePopulation(ionic_strength=(0, 0.02)),
+    ...                          analyte_range=(1e-5, 1e-3), budget=ia.Budget(mv=1.0), model="davies")
+    >>> [(r.candidate, r.feasible) for r in c.rows]
+    [('A', True), ('B', True)]
     """
     from .api import design_adjuster
 

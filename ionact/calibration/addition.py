@@ -160,22 +160,49 @@ def known_addition(analyte: Any, *, sample_volume: Any, spike_volume: Any, spike
                    delta_mv: Any, slope_mv: Any = None, calibration: Calibration | None = None,
                    matrix: Any = None, temperature: Any = 25.0, model: str | None = None, counter_ion: Any = None,
                    reading_sd_mv: float | None = None) -> AdditionResult:
-    """Single known addition.
+    """Single known addition: the sample's concentration from one spike and one potential change.
 
     Parameters
     ----------
+    analyte : str or Ion
+        The measured ion.
     sample_volume, spike_volume : float or str
         mL, or unit strings.
     spike_concentration : float or str
         mol/L or a unit string.
     delta_mv : float
         E(after) − E(before), mV.
-    slope_mv, calibration :
-        The slope (default: Nernstian at the temperature).
+    slope_mv : float, optional
+        The electrode's slope, mV/decade (default: the calibration's, else Nernstian at the
+        temperature).
+    calibration : Calibration, optional
+        A calibration whose slope (and residual SD) to use.
     matrix : Solution, optional
         The sample's background (diluted by the spike); pure water when None.
+    temperature : float or str
+        °C.
+    model : str, optional
+        Activity model for the γ change that the spike causes (default "auto").
+    counter_ion : str, optional
+        The ion accompanying the analyte in the spike.
     reading_sd_mv : float, optional
         Standard deviation of one reading (default: the calibration's residual SD, else 0.1 mV).
+
+    Returns
+    -------
+    AdditionResult
+        Concentration (mol/L) with its standard uncertainty, and the notes of the evaluation.
+
+    Raises
+    ------
+    InputError
+        Non-positive volumes or concentration, a potential change of the wrong sign for the
+        analyte, or a non-finite value.
+
+    References
+    ----------
+    Known addition as in Buck and Lindner, Pure Appl. Chem. 66 (1994) 2527; the γ
+    correction for the spike's change of ionic strength is common practice.
 
     Examples
     --------
@@ -204,15 +231,54 @@ def known_addition(analyte: Any, *, sample_volume: Any, spike_volume: Any, spike
 def double_addition(analyte: Any, *, sample_volume: Any, spike_volume: Any, spike_concentration: Any,
                     delta_mv: Sequence[Any], matrix: Any = None, temperature: Any = 25.0, model: str | None = None,
                     counter_ion: Any = None, reading_sd_mv: float = DEFAULT_READING_SD_MV) -> AdditionResult:
-    """Double known addition: two equal spikes, two potential changes (each against the
-    sample before any spike); yields the concentration and the slope.
+    """Double known addition: the concentration and the slope from two equal spikes.
+
+    The two potential changes are each taken against the sample before any spike.
 
     Parameters
     ----------
+    analyte : str or Ion
+        The measured ion.
+    sample_volume : float or str
+        mL, or a unit string.
     spike_volume : float or str
         The volume of each of the two spikes (mL).
+    spike_concentration : float or str
+        mol/L or a unit string.
     delta_mv : (ΔE₁, ΔE₂)
         Potentials after the first and after the second spike, minus the sample's, mV.
+    matrix : Solution, optional
+        The sample's background; pure water when None.
+    temperature : float or str
+        °C.
+    model : str, optional
+        Activity model (default "auto").
+    counter_ion : str, optional
+        The ion accompanying the analyte in the spike.
+    reading_sd_mv : float
+        Standard deviation of one reading, mV.
+
+    Returns
+    -------
+    AdditionResult
+        Concentration (mol/L), the slope it implies (mV/decade), uncertainty and notes.
+
+    Raises
+    ------
+    InputError
+        Not two potential changes, changes of the wrong sign or order, non-positive volumes.
+
+    References
+    ----------
+    Double known addition as common practice (the slope found in the sample itself).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> r = ia.double_addition("F-", sample_volume=50, spike_volume=0.5, spike_concentration=0.01,
+    ...                        delta_mv=(-17.0, -26.5), model="ideal")
+    >>> round(r.concentration * 1e5, 2), round(r.slope_mv, 1)
+    (8.93, -52.8)
     """
     meas = _context(analyte, temperature, matrix, model, counter_ion, None)
     vx, vs = _volume(sample_volume, "sample_volume"), _volume(spike_volume, "spike_volume")
@@ -256,10 +322,53 @@ def multiple_addition(analyte: Any, *, sample_volume: Any, spike_volumes: Any, s
 
     Parameters
     ----------
+    analyte : str or Ion
+        The measured ion.
+    sample_volume : float or str
+        mL, or a unit string.
     spike_volumes : sequence
         Cumulative volume added at each reading (mL); the first may be 0 (the sample alone).
+    spike_concentration : float or str
+        mol/L or a unit string.
     potentials_mv : sequence
-        One reading per cumulative volume.
+        One reading per cumulative volume, mV.
+    slope_mv : float, optional
+        The electrode's slope, mV/decade (default: the calibration's, else Nernstian).
+    calibration : Calibration, optional
+        A calibration whose slope to use.
+    matrix : Solution, optional
+        The sample's background; pure water when None.
+    temperature : float or str
+        °C.
+    model : str, optional
+        Activity model for the γ at each reading (default "auto").
+    counter_ion : str, optional
+        The ion accompanying the analyte in the spike.
+
+    Returns
+    -------
+    AdditionResult
+        Concentration (mol/L) from the Gran plot's intercept, its standard uncertainty, the
+        Gran points and notes.
+
+    Raises
+    ------
+    InputError
+        Fewer than three readings, volumes not increasing, lengths that differ, or a
+        non-finite value.
+
+    References
+    ----------
+    G. Gran, Analyst 77 (1952) 661 (from memory).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> r = ia.multiple_addition("F-", sample_volume=50, spike_volumes=[0, 0.5, 1.0, 1.5],
+    ...                          spike_concentration=0.01, potentials_mv=[100.0, 84.0, 75.0, 68.0],
+    ...                          model="ideal")
+    >>> round(r.concentration * 1e4, 3)   # mol/L
+    1.177
     """
     meas = _context(analyte, temperature, matrix, model, counter_ion, calibration)
     vx = _volume(sample_volume, "sample_volume")
@@ -276,7 +385,7 @@ def multiple_addition(analyte: Any, *, sample_volume: Any, spike_volumes: Any, s
     if u_s > 0:  # the slope's share, by a finite difference
         cx2 = _gran(meas, vx, v, e, cs, s + u_s)[2]
         u = math.hypot(u, cx2 - cx)
-    return AdditionResult("multiple addition (Gran)", meas.analyte, cx, u, s, src, x, gvals,
+    return AdditionResult("multiple addition (Gran)", meas.analyte, float(cx), float(u), s, src, x, gvals,
                           notes=(f"Gran function with volume and activity-coefficient corrections "
                                  f"(activities by {meas.model})",))
 

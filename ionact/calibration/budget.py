@@ -95,8 +95,9 @@ def error_budget(calibration: Calibration, potential_mv: Any, *, design: Any = N
     Parameters
     ----------
     calibration : Calibration
+        The fitted calibration.
     potential_mv : float
-        The sample's reading.
+        The sample's reading, mV.
     design : AdjusterDesign, optional
         Its residual γ mismatch is a term.
     sample : Solution, optional
@@ -108,6 +109,29 @@ def error_budget(calibration: Calibration, potential_mv: Any, *, design: Any = N
         Ion -> (activity in the measured solution, selectivity coefficient).
     bridge : mapping, optional
         The reference electrode's bridge electrolyte, ion -> mol/L (default 3 mol/L KCl).
+
+    Returns
+    -------
+    ErrorBudget
+        Each term in mV and %, standard or bound, the combined and expanded uncertainty.
+
+    Raises
+    ------
+    InputError
+        A potential that is not a finite number, or malformed interferents.
+
+    References
+    ----------
+    JCGM 100:2008, *Evaluation of measurement data — Guide to the expression of uncertainty
+    in measurement* (bounds as rectangular distributions, §4.3.7).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> cal = ia.calibrate("F-", [1e-5, 1e-4, 1e-3, 1e-2], [120.1, 61.0, 2.1, -56.9], model="davies")
+    >>> b = ia.error_budget(cal, 30.0)
+    >>> b.terms[0].name, round(b.terms[0].u_mv, 2)
+    ('calibration', 0.87)
     """
     from .quantitation import quantify
 

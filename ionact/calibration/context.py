@@ -114,8 +114,45 @@ class Measurement(Record):
 
 def measurement_for(analyte: Any, *, temperature: Any = 25.0, design: Any = None, matrix: Any = None,
                     model: str | None = None, counter_ion: Any = None) -> Measurement:
-    """The measurement context: with a design, its adjuster in its ratio, its model and
-    counter-ion; else a given background ``matrix`` (a Solution) or pure water."""
+    """The measurement context in which standards and samples are read.
+
+    With a design: its adjuster in its ratio, its model and counter-ion; else a given
+    background ``matrix`` (a Solution) or pure water.
+
+    Parameters
+    ----------
+    analyte : str or Ion
+        The measured ion, e.g. "F-".
+    temperature : float, str or pint.Quantity
+        °C for bare numbers.
+    design : AdjusterDesign or its dict, optional
+        The method's adjuster design; its treated-solution composition is the background.
+    matrix : Solution, optional
+        Otherwise the background (pure water when None).
+    model : str, optional
+        Activity model (default: the design's, else "auto").
+    counter_ion : str, optional
+        The ion accompanying the analyte in the standards (default: the design's, else the
+        usual one for the analyte's sign).
+
+    Returns
+    -------
+    Measurement
+        The context every calibration job reads activities in.
+
+    Raises
+    ------
+    InputError
+        Both a design and a matrix, a temperature outside liquid water's range, or a
+        design that is not one.
+
+    Examples
+    --------
+    >>> from ionact.calibration import measurement_for
+    >>> m = measurement_for("F-")
+    >>> m.analyte, m.model, m.dilution
+    ('F-', 'auto', 1.0)
+    """
     from ..solution import Solution
     from ..water import checked_temperature
 

@@ -196,6 +196,7 @@ def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperat
     Parameters
     ----------
     analyte : str or Ion
+        The measured ion, e.g. "F-".
     concentrations : sequence
         The standards as prepared: mol/L, or unit strings ("0.1 mg/L"); listed in increasing
         (or decreasing) order, no value twice (replicates go into ``sd_mv``).
@@ -211,8 +212,12 @@ def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperat
     model : str, optional
         Activity model (default: the design's, else "auto").
     fit : {"auto", "nernst", "nikolsky"}
+        The calibration function: a straight line in log a, the curved form with a constant
+        background activity, or the curved form only where an F-test supports it.
     sd_mv : sequence, optional
         Replicate standard deviation of each standard's potential (mV): weights 1/sd².
+    counter_ion : str, optional
+        The ion accompanying the analyte in the standards.
     slope_window : (low, high)
         Accepted slope, % of Nernstian.
     linearity_mv : float
@@ -224,12 +229,26 @@ def calibrate(analyte: Any, concentrations: Any, potentials_mv: Any, *, temperat
     Returns
     -------
     Calibration
+        E°, slope (mV/decade and % of Nernstian), their covariance, detection limit (mol/L),
+        linear range, residuals, and the measurement context.
 
     Raises
     ------
     InputError
         Fewer than two standards, duplicated or unordered concentrations, potentials that
         are not numbers, lengths that differ, an unknown fit.
+
+    References
+    ----------
+    R. P. Buck and E. Lindner, Pure Appl. Chem. 66 (1994) 2527 (IUPAC recommendations for
+    ion-selective electrodes: slope, detection limit, linear range; from memory).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> cal = ia.calibrate("F-", [1e-5, 1e-4, 1e-3, 1e-2], [120.1, 61.0, 2.1, -56.9], model="davies")
+    >>> round(cal.slope_mv, 2), round(cal.slope_percent, 1), cal.fit
+    (-59.87, 101.2, 'nernst')
     """
     if fit not in FITS:
         raise InputError(f"fit {fit!r} is not one of {', '.join(FITS)}", value=fit, allowed=", ".join(FITS),

@@ -36,6 +36,22 @@ def junction_potential(solution_a: Any, solution_b: Any, temperature: Any = None
     temperature : float, optional
         °C (default: solution a's).
 
+    Returns
+    -------
+    float
+        The junction potential, mV.
+
+    Raises
+    ------
+    InputError
+        A batch instead of a single solution, or an ion without a tabulated limiting
+        conductivity.
+
+    References
+    ----------
+    P. Henderson, Z. Phys. Chem. 59 (1907) 118; limiting conductivities from Robinson and
+    Stokes, *Electrolyte Solutions* (1959), appendix 6.2 (from memory).
+
     Examples
     --------
     >>> import ionact as ia

@@ -143,8 +143,9 @@ def quantify(calibration: Calibration, potentials_mv: Any, *, times: Any = None,
     Parameters
     ----------
     calibration : Calibration
+        The fitted calibration (see :func:`calibrate`).
     potentials_mv : sequence
-        One potential per sample (NaN or None marks a missing reading: that row is invalid).
+        One potential per sample, mV (NaN or None marks a missing reading: that row is invalid).
     times : sequence, optional
         When each sample was read (the check standard's time unit); needed with ``check``.
     check : DriftCheck, optional
@@ -152,13 +153,34 @@ def quantify(calibration: Calibration, potentials_mv: Any, *, times: Any = None,
     correct_drift : bool
         Subtract the interpolated offset from each sample's potential.
     drift_limit_mv : float
-        Largest acceptable absolute offset; rows beyond it get the status "drift beyond the limit".
+        Largest acceptable absolute offset, mV; rows beyond it get the status "drift beyond
+        the limit".
     coverage : float
         Of the interval (0 < coverage < 1).
 
     Returns
     -------
     Quantitation
+        Per sample: concentration (mol/L), its interval, the activity, and a status; every
+        row is kept in order.
+
+    Raises
+    ------
+    InputError
+        A coverage outside (0, 1), times missing or of another length with ``check``.
+
+    References
+    ----------
+    N. R. Draper and H. Smith, *Applied Regression Analysis*, 3rd ed., Wiley (1998), §3.2
+    (inverse prediction); JCGM 100:2008 (GUM) for the coverage.
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> cal = ia.calibrate("F-", [1e-5, 1e-4, 1e-3, 1e-2], [120.1, 61.0, 2.1, -56.9], model="davies")
+    >>> q = ia.quantify(cal, [30.0, 90.0])
+    >>> [round(float(c) * 1e4, 3) for c in q.concentration], q.status
+    ([3.297, 0.323], ('ok', 'ok'))
     """
     if not isinstance(calibration, Calibration):
         raise InputError(f"quantify needs a Calibration, got {type(calibration).__name__}")

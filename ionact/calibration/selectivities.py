@@ -79,14 +79,25 @@ class Selectivity(Record):
 def selectivity(primary: Any, interferent: Any, *, method: str = "separate", temperature: Any = 25.0,
                 slope_mv: Any = None, model: str | None = None, primary_counter_ion: Any = None,
                 interferent_counter_ion: Any = None, **data: Any) -> Selectivity:
-    """A selectivity coefficient K(primary, interferent) from measurements.
+    """A potentiometric selectivity coefficient K(primary, interferent) from measurements.
 
     Parameters
     ----------
+    primary : str or Ion
+        The electrode's primary ion.
+    interferent : str or Ion
+        The interfering ion (same sign of charge).
     method : {"separate", "fixed", "matched"}
+        Separate-solution, fixed-interference or matched-potential method.
+    temperature : float or str
+        °C.
     slope_mv : float, optional
         The electrode's slope (default: Nernstian at the temperature; the fixed-interference
         method fits its own).
+    model : str, optional
+        Activity model for the solutions' activities (default "auto").
+    primary_counter_ion, interferent_counter_ion : str, optional
+        The ions accompanying primary and interferent in their salts.
     **data
         separate: ``primary_concentration``, ``primary_mv``, ``interferent_concentration``,
         ``interferent_mv``.
@@ -96,6 +107,31 @@ def selectivity(primary: Any, interferent: Any, *, method: str = "separate", tem
         ``primary_added`` (the primary's concentration step) and ``interferent_concentration``
         (added to the reference, giving the same potential change).
         Concentrations in mol/L or unit strings; potentials in mV.
+
+    Returns
+    -------
+    Selectivity
+        K (on activities, and on concentrations for comparison), log K, the slope used, the
+        activities and notes; ``.electrode_entry`` for a method file.
+
+    Raises
+    ------
+    InputError
+        An unknown method, missing or extra data for the method, ions of opposite charge,
+        or non-positive concentrations.
+
+    References
+    ----------
+    Y. Umezawa et al., Pure Appl. Chem. 72 (2000) 1851 (IUPAC report on selectivity
+    coefficients; from memory).
+
+    Examples
+    --------
+    >>> import ionact as ia
+    >>> s = ia.selectivity("NO3-", "Cl-", method="separate", primary_concentration=0.01, primary_mv=-100.0,
+    ...                    interferent_concentration=0.01, interferent_mv=-10.0, model="ideal")
+    >>> round(s.log_coefficient, 2)
+    -1.52
     """
     if method not in METHODS:
         raise InputError(f"method {method!r} is not one of {', '.join(METHODS)}", value=method,

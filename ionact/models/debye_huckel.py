@@ -133,21 +133,31 @@ def limiting(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     Parameters
     ----------
     charge : int or array_like
-        Signed charge numbers.
+        Signed charge numbers, dimensionless.
     ionic_strength : float or array_like
-        mol/kg.
+        Ionic strength, mol/kg (≥ 0).
     temperature : float or array_like
         °C; A follows :func:`ionact.water.debye_huckel_a`.
 
     Returns
     -------
-    float or ndarray
-        γ, broadcast over the inputs.
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength, a Quantity or a
+        masked array, or a temperature outside liquid water's range.
 
     Warns
     -----
     ValidityRangeWarning
         Above I = 0.005 mol/kg.
+
+    References
+    ----------
+    P. Debye and E. Hückel, Phys. Z. 24 (1923) 185.
 
     Examples
     --------
@@ -164,17 +174,33 @@ def extended_debye_huckel(charge, ionic_strength, size, *, temperature=25.0) -> 
     Parameters
     ----------
     charge : int or array_like
+        Signed charge numbers, dimensionless.
     ionic_strength : float or array_like
-        mol/kg.
+        Ionic strength, mol/kg (≥ 0).
     size : float or array_like
         Ion-size parameter å in Å (Kielland 1937 values are on :class:`ionact.Ion`).
     temperature : float or array_like
-        °C.
+        °C; A and B follow :mod:`ionact.water`.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength or size, a Quantity
+        or a masked array, or a temperature outside liquid water's range.
 
     Warns
     -----
     ValidityRangeWarning
         Above I = 0.1 mol/kg.
+
+    References
+    ----------
+    J. Kielland, J. Am. Chem. Soc. 59 (1937) 1675 (sizes and the table of γ).
 
     Examples
     --------
@@ -188,6 +214,35 @@ def extended_debye_huckel(charge, ionic_strength, size, *, temperature=25.0) -> 
 
 def guntelberg(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     """Güntelberg (1926): log10 γ = −A z² √I / (1 + √I).
+
+    Parameters
+    ----------
+    charge : int or array_like
+        Signed charge numbers, dimensionless.
+    ionic_strength : float or array_like
+        Ionic strength, mol/kg (≥ 0).
+    temperature : float or array_like
+        °C.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength, a Quantity or a
+        masked array, or a temperature outside liquid water's range.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 0.1 mol/kg.
+
+    References
+    ----------
+    E. Güntelberg, Z. Phys. Chem. 123 (1926) 199.
 
     Examples
     --------
@@ -204,17 +259,33 @@ def davies(charge, ionic_strength, temperature=25.0, *, coefficient=DAVIES_COEFF
     Parameters
     ----------
     charge : int or array_like
+        Signed charge numbers, dimensionless.
     ionic_strength : float or array_like
-        mol/kg.
+        Ionic strength, mol/kg (≥ 0).
     temperature : float or array_like
         °C.
     coefficient : float
-        The linear-term coefficient c (0.3; some authors use 0.2).
+        The linear-term coefficient c, dimensionless (0.3; some authors use 0.2).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength, a Quantity or a
+        masked array, or a temperature outside liquid water's range.
 
     Warns
     -----
     ValidityRangeWarning
         Above I = 0.5 mol/kg.
+
+    References
+    ----------
+    C. W. Davies, *Ion Association*, Butterworths (1962).
 
     Examples
     --------
@@ -237,15 +308,36 @@ def truesdell_jones(charge, ionic_strength, a_size, *, b_ion, temperature=25.0) 
 
     Parameters
     ----------
+    charge : int or array_like
+        Signed charge numbers, dimensionless.
+    ionic_strength : float or array_like
+        Ionic strength, mol/kg (≥ 0).
     a_size : float or array_like
         Truesdell–Jones a, Å.
     b_ion : float or array_like
         Truesdell–Jones b, kg/mol.
+    temperature : float or array_like
+        °C.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength or size, a Quantity
+        or a masked array, or a temperature outside liquid water's range.
 
     Warns
     -----
     ValidityRangeWarning
         Above I = 2 mol/kg.
+
+    References
+    ----------
+    A. H. Truesdell and B. F. Jones, J. Res. U.S. Geol. Surv. 2 (1974) 233.
 
     Examples
     --------
@@ -261,10 +353,38 @@ def truesdell_jones(charge, ionic_strength, a_size, *, b_ion, temperature=25.0) 
 def b_dot(charge, ionic_strength, size, *, temperature=25.0, bdot=B_DOT) -> float | np.ndarray:
     """B-dot (Helgeson 1969): extended Debye–Hückel plus Ḃ I, Ḃ = 0.041 kg/mol at 25 °C.
 
+    Parameters
+    ----------
+    charge : int or array_like
+        Signed charge numbers, dimensionless.
+    ionic_strength : float or array_like
+        Ionic strength, mol/kg (≥ 0).
+    size : float or array_like
+        Ion-size parameter å, Å.
+    temperature : float or array_like
+        °C.
+    bdot : float
+        Ḃ, kg/mol (0.041 at 25 °C).
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength or size, a Quantity
+        or a masked array, or a temperature outside liquid water's range.
+
     Warns
     -----
     ValidityRangeWarning
         Above I = 1 mol/kg, or away from 25 ± 5 °C (Ḃ is a 25 °C value here).
+
+    References
+    ----------
+    H. C. Helgeson, Am. J. Sci. 267 (1969) 729 (Ḃ from memory).
 
     Examples
     --------
@@ -281,8 +401,37 @@ def b_dot(charge, ionic_strength, size, *, temperature=25.0, bdot=B_DOT) -> floa
 def bates_guggenheim(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
     """Bates–Guggenheim convention: log10 γ_Cl = −A √I / (1 + 1.5 √I), for I ≤ 0.1 mol/kg.
 
-    The convention that fixes single-ion activity in the definition of pH (IUPAC 2002,
-    Buck et al., Pure Appl. Chem. 74, 2169). For other charges the same form with z².
+    The convention that fixes single-ion activity in the definition of pH. For other
+    charges the same form with z².
+
+    Parameters
+    ----------
+    charge : int or array_like
+        Signed charge numbers, dimensionless.
+    ionic_strength : float or array_like
+        Ionic strength, mol/kg (≥ 0).
+    temperature : float or array_like
+        °C.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ, dimensionless (molal scale), broadcast over the inputs.
+
+    Raises
+    ------
+    InputError
+        A negative or non-numeric ionic strength, a Quantity or a
+        masked array, or a temperature outside liquid water's range.
+
+    Warns
+    -----
+    ValidityRangeWarning
+        Above I = 0.1 mol/kg.
+
+    References
+    ----------
+    R. P. Buck et al., Pure Appl. Chem. 74 (2002) 2169 (IUPAC recommendations on pH).
 
     Examples
     --------
@@ -295,6 +444,28 @@ def bates_guggenheim(charge, ionic_strength, temperature=25.0) -> float | np.nda
 
 def setschenow(ionic_strength, k=SETSCHENOW_DEFAULT) -> float | np.ndarray:
     """Setschenow form for neutral solutes: log10 γ = k I (k ≈ 0.1 kg/mol when unknown).
+
+    Parameters
+    ----------
+    ionic_strength : float or array_like
+        Ionic strength, mol/kg (≥ 0).
+    k : float or array_like
+        Setschenow (salting-out) coefficient, kg/mol.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        γ of the neutral solute, dimensionless.
+
+    Raises
+    ------
+    InputError
+        A negative ionic strength.
+
+    References
+    ----------
+    J. Setschenow, Z. Phys. Chem. 4 (1889) 117; k = 0.1 kg/mol when unknown is common
+    practice.
 
     Examples
     --------

@@ -464,17 +464,43 @@ _ALIASES = {"debye-huckel": "extended", "extended-debye-huckel": "extended", "bd
 
 
 def model_names() -> tuple[str, ...]:
-    """Registered model names (plus "auto")."""
+    """Registered model names (plus "auto").
+
+    Returns
+    -------
+    tuple of str
+        The names :func:`ionact.activity_coefficients` and every job accept.
+
+    Examples
+    --------
+    >>> "davies" in model_names() and "auto" in model_names()
+    True
+    """
     return (*MODELS, "auto")
 
 
 def get_model(name: object) -> ModelInfo:
     """Look up a model by name (case- and underscore-insensitive).
 
+    Parameters
+    ----------
+    name : str
+        A registered model name (see :func:`model_names`), e.g. "davies", "Pitzer", "b_dot".
+
+    Returns
+    -------
+    ModelInfo
+        The model's record: title, validity limit in mol/kg, convention, reference, kernel.
+
     Raises
     ------
     UnknownSpeciesError
         Not a registered model name (the message lists the allowed names).
+
+    Examples
+    --------
+    >>> get_model("Davies").max_ionic_strength
+    0.5
     """
     if not isinstance(name, str):
         raise InputError(f"model must be a name, got {name!r}")

@@ -265,7 +265,6 @@ def check_samples(
     background: str | None = None,
     charge_tolerance_percent: float = DEFAULT_CHARGE_BALANCE_PERCENT,
     progress: bool = False,
-    _offset: int = 0,
 ) -> SampleCheck:
     """Check a batch of samples against an adjuster method, sample by sample.
 
@@ -304,6 +303,8 @@ def check_samples(
     Returns
     -------
     SampleCheck
+        Every row in input order with its status, reason, ionic strength and its source,
+        treated analyte activity, residual error (mV and %), dilution, and free fraction.
 
     Raises
     ------
@@ -333,7 +334,7 @@ def check_samples(
     vals = row_values(specs, cols, row_errors, delimiter=delim, decimal_comma=dec, temperature=method.temperature,
                       conductivity_rule=rules["conductivity"], tds_rule=rules["tds"],
                       charge_tolerance_percent=_percent(charge_tolerance_percent), density=method.density,
-                      id_offset=_offset)
+                      id_offset=samples.first_row if isinstance(samples, SampleTable) else 0)
     _duplicates(vals)
     core = _core(method, vals.ions, background)
     n = len(vals.ids)

@@ -235,7 +235,7 @@ def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, cali
             _mark_earlier_duplicates(table, seen, offset)
             r = check_samples(table, design, calibration_range=calibration_range, dilutions=dilutions,
                               analyte_unit=analyte_unit, units=units, rule=rule, background=background,
-                              charge_tolerance_percent=charge_tolerance_percent, _offset=offset)
+                              charge_tolerance_percent=charge_tolerance_percent)
             if fh is not None:
                 header, rows = _rows_text(r)
                 w = csv.writer(fh)

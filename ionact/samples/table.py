@@ -59,6 +59,12 @@ class SampleTable:
     delimiter : str
     decimal_comma : bool or None
         True/False as given, None for "when unambiguous" (semicolon and tab files only).
+    source : str
+        The file's name, for messages.
+    first_row : int
+        Position of this table's first row among the file's sample rows (0 for a whole
+        file; a chunk of a streamed file starts further on), so rows are numbered as in
+        the file.
     """
 
     columns: dict[str, list[str]]
@@ -68,6 +74,7 @@ class SampleTable:
     delimiter: str = ","
     decimal_comma: bool | None = None
     source: str = ""
+    first_row: int = 0
 
     def __len__(self) -> int:
         return len(self.row_errors)
@@ -224,6 +231,7 @@ def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma:
     rows: list[list[str]] = []
     errors: list[str | None] = []
     numbers: list[int] = []
+    done = 0  # sample rows in the tables already yielded
     while True:
         start = reader.number + 1
         lines = []
@@ -243,18 +251,19 @@ def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma:
             _append(rows, errors, numbers, len(header), cells, number)
             any_rows = True
             if len(errors) >= chunk_rows:
-                yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers)
+                yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers, done)
+                done += len(errors)
                 rows, errors, numbers = [], [], []
     if not any_rows:
         raise InputError(f"{src} has a header but no sample rows")
     if errors:
-        yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers)
+        yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers, done)
 
 
 def _table(header: list[str], units: dict[str, str], delim: str, decimal_comma: bool | None, src: str,
-           rows: list[list[str]], errors: list[str | None], numbers: list[int]) -> SampleTable:
+           rows: list[list[str]], errors: list[str | None], numbers: list[int], first_row: int) -> SampleTable:
     cols = {h: list(col) for h, col in zip(header, zip(*rows, strict=True), strict=True)}
-    return SampleTable(cols, dict(units), errors, numbers, delim, decimal_comma, src)
+    return SampleTable(cols, dict(units), errors, numbers, delim, decimal_comma, src, first_row)
 
 
 def _append(rows: list[list[str]], errors: list[str | None], numbers: list[int], width: int, cells: list[str],
