@@ -427,7 +427,7 @@ def cmd_check(args: argparse.Namespace) -> int:
     summary = check_csv(args.samples, design, out=None if to_stdout else args.out, plot=args.plot,
                         calibration_range=cal, dilutions=dil, delimiter=args.delimiter,
                         decimal_comma=args.decimal_comma, charge_tolerance_percent=args.charge_balance,
-                        keep_rows=bool(args.json) or to_stdout)
+                        keep_rows=bool(args.json) or to_stdout, progress=True)
     if to_stdout:
         _write_rows_to_stdout(summary)
         print(summary.text(), file=sys.stderr)

@@ -1,7 +1,9 @@
 """The analyst's batch range check and dilution planner."""
 
+import io
 import json
 import math
+import sys
 
 import numpy as np
 import pytest
@@ -184,6 +186,32 @@ def test_plot(design, tmp_path):
 def test_progress_is_quiet_when_not_a_terminal(design, capsys):
     check_samples({"analyte": [1e-4] * 5, "ionic_strength": [0.01] * 5}, design, progress=True)
     assert capsys.readouterr().err == ""
+
+
+class _Terminal(io.StringIO):
+    def isatty(self) -> bool:
+        return True
+
+
+def test_progress_shows_on_a_terminal(design, monkeypatch):
+    term = _Terminal()
+    monkeypatch.setattr(sys, "stderr", term)
+    r = check_samples({"analyte": [1e-4] * 5, "ionic_strength": [0.01] * 5}, design, progress=True)
+    assert len(r) == 5
+    shown = term.getvalue()
+    assert "checking samples" in shown and "/5 " in shown  # the bar, against the batch size
+
+
+def test_streamed_check_counts_rows_on_a_terminal(design, tmp_path, monkeypatch):
+    from ionact.samples import check_csv
+
+    src = tmp_path / "b.csv"
+    src.write_text("sample_id,analyte,ionic_strength\n" + "".join(f"s{k},1e-4,0.01\n" for k in range(7)))
+    term = _Terminal()
+    monkeypatch.setattr(sys, "stderr", term)
+    summary = check_csv(src, design, chunk_rows=3, progress=True)
+    assert sum(summary.counts.values()) == 7
+    assert "checking b.csv" in term.getvalue() and "row" in term.getvalue()  # a count: the file length is unknown
 
 
 def test_design_figure_for_evaluated_design(design, tmp_path):

@@ -15,7 +15,6 @@ when a value is missing or impossible. Every input row comes out, in order.
 from __future__ import annotations
 
 import math
-import sys
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -23,6 +22,7 @@ from typing import Any
 import numpy as np
 
 from .._pandas import is_frame
+from .._progress import Progress
 from ..adjuster import AdjusterDesign
 from ..density import water_per_litre
 from ..electrode import nernst_slope
@@ -298,7 +298,7 @@ def check_samples(
         Largest ion-balance error, % of total equivalents, for rows whose ionic strength
         comes from their ions (default 5 %, common practice).
     progress : bool
-        A progress display on standard error.
+        A progress display on standard error (only when it is a terminal).
 
     Returns
     -------
@@ -343,15 +343,13 @@ def check_samples(
     t_i = np.full((n, dil.size), np.nan)
     lg = np.full((n, dil.size), np.nan)
     free = np.full((n, dil.size), np.nan)
-    for start in range(0, n, CHUNK):
-        sl = slice(start, min(n, start + CHUNK))
-        part = RowValues(vals.ids[sl], vals.analyte[sl], vals.ionic[sl], vals.sources[sl],
-                         {k: (ion, c[sl]) for k, (ion, c) in vals.ions.items()}, vals.reasons[sl])
-        err[sl], t_an[sl], t_i[sl], lg[sl], free[sl] = _errors(core, method, part, dil)
-        if progress:
-            _progress(sl.stop, n)
-    if progress and n and sys.stderr.isatty():
-        sys.stderr.write("\n")
+    with Progress(n, "checking samples", enabled=progress) as bar:
+        for start in range(0, n, CHUNK):
+            sl = slice(start, min(n, start + CHUNK))
+            part = RowValues(vals.ids[sl], vals.analyte[sl], vals.ionic[sl], vals.sources[sl],
+                             {k: (ion, c[sl]) for k, (ion, c) in vals.ions.items()}, vals.reasons[sl])
+            err[sl], t_an[sl], t_i[sl], lg[sl], free[sl] = _errors(core, method, part, dil)
+            bar.advance(sl.stop - sl.start)
     unit = next(s.unit for s in specs if s.role == "analyte") or "mol/L"
     factor = next(s.factor for s in specs if s.role == "analyte")
     result = _classify(vals, method, dil, cal, err, t_an, t_i, lg, free, core, unit, factor)
@@ -506,11 +504,4 @@ class _Flags:
         return f"{prefix}: " + ", ".join(parts)
 
 
-def _progress(done: int, total: int) -> None:
-    if not sys.stderr.isatty():
-        return
-    width = 30
-    frac = done / total if total else 1.0
-    sys.stderr.write(f"\rchecking samples [{'#' * int(width * frac):<{width}}] {done}/{total}")
-    sys.stderr.flush()
 

@@ -21,6 +21,7 @@ from typing import IO, Any
 
 import numpy as np
 
+from .._progress import Progress
 from ..errors import InputError
 from .check import DEFAULT_DILUTIONS, check_samples
 from .columns import DEFAULT_CHARGE_BALANCE_PERCENT
@@ -216,12 +217,13 @@ def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, cali
               rule: Any = None, background: str | None = None,
               charge_tolerance_percent: float = DEFAULT_CHARGE_BALANCE_PERCENT, delimiter: str | None = None,
               decimal_comma: bool | None = None, keep_rows: bool = False, limit: int = 50,
-              chunk_rows: int = CHUNK_ROWS) -> BatchSummary:
+              chunk_rows: int = CHUNK_ROWS, progress: bool = False) -> BatchSummary:
     """Check a sample file of any length in chunks, writing the report as it goes.
 
     Memory does not grow with the file: each chunk is read, checked and written; the
     summary keeps the counts, the first ``limit`` rows as text and the figure's points.
     The report (and figure) replace their targets only when all of them are complete.
+    ``progress`` shows the rows checked so far on standard error when it is a terminal.
     """
     if plot is not None and Path(plot).suffix.lower() not in FIGURE_FORMATS:
         raise InputError(f"--plot {plot}: the figure's file must end in {', '.join(FIGURE_FORMATS)}")
@@ -231,19 +233,22 @@ def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, cali
     fh = writer_cm.__enter__() if writer_cm is not None else None
     try:
         offset = 0
-        for table in iter_samples_csv(path, delimiter=delimiter, decimal_comma=decimal_comma, chunk_rows=chunk_rows):
-            _mark_earlier_duplicates(table, seen, offset)
-            r = check_samples(table, design, calibration_range=calibration_range, dilutions=dilutions,
-                              analyte_unit=analyte_unit, units=units, rule=rule, background=background,
-                              charge_tolerance_percent=charge_tolerance_percent)
-            if fh is not None:
-                header, rows = _rows_text(r)
-                w = csv.writer(fh)
-                if offset == 0:
-                    w.writerow(header)
-                w.writerows(rows)
-            summary.add(r, keep_rows, limit)
-            offset += len(r)
+        with Progress(None, f"checking {Path(str(path)).name}", unit="row", enabled=progress) as bar:
+            for table in iter_samples_csv(path, delimiter=delimiter, decimal_comma=decimal_comma,
+                                          chunk_rows=chunk_rows):
+                _mark_earlier_duplicates(table, seen, offset)
+                r = check_samples(table, design, calibration_range=calibration_range, dilutions=dilutions,
+                                  analyte_unit=analyte_unit, units=units, rule=rule, background=background,
+                                  charge_tolerance_percent=charge_tolerance_percent)
+                if fh is not None:
+                    header, rows = _rows_text(r)
+                    w = csv.writer(fh)
+                    if offset == 0:
+                        w.writerow(header)
+                    w.writerows(rows)
+                summary.add(r, keep_rows, limit)
+                offset += len(r)
+                bar.advance(len(r))
         if plot is not None:
             with atomic_binary(plot) as tmp:
                 summary.figure().savefig(tmp, format=Path(plot).suffix[1:].lower(), dpi=110)
