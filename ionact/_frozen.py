@@ -94,7 +94,19 @@ def _flat_none(v: Any) -> list[Any]:
 
 class Record:
     """``to_dict``/``from_dict`` for frozen dataclass results: plain JSON-ready values out,
-    the field types (arrays, tuples, nested records) back in."""
+    the field types (arrays, tuples, nested records) back in; a short ``repr`` (arrays by
+    shape and range) and an HTML table for notebooks, whatever the batch size. Subclasses
+    are declared ``@dataclass(frozen=True, repr=False)`` so that these displays apply."""
+
+    def __repr__(self) -> str:
+        from ._display import record_repr
+
+        return record_repr(self)
+
+    def _repr_html_(self) -> str:
+        from ._display import record_html
+
+        return record_html(self)
 
     def to_dict(self) -> dict[str, Any]:
         import dataclasses

@@ -104,6 +104,11 @@ class ActivityCoefficients(Mapping):
         )
         return f"ActivityCoefficients(model={self.model!r}, {{{body}}})"
 
+    def _repr_html_(self) -> str:
+        from ._display import html_table
+
+        return html_table(("ion", "γ"), [(k, v) for k, v in self._g.items()], repr(self))
+
     def to_pandas(self) -> Any:
         """γ of every ion as a DataFrame (one row per solution, on the solution's DataFrame
         index when it was built from one), with the ionic strength."""
@@ -263,7 +268,7 @@ def _plain(a: Any) -> float | np.ndarray:
     return float(arr) if arr.ndim == 0 else arr
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class MeanActivityCoefficient(Record):
     """γ± of a salt from single-ion values, with the convention that applies.
 
@@ -444,7 +449,7 @@ def water_activity(solution: Solution, model: str = "pitzer", missing: str = "er
     return float(aw) if np.ndim(aw) == 0 else aw
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class ModelComparison(Record):
     """Every applicable model's γ side by side, and how far they spread.
 

@@ -215,7 +215,7 @@ def _max_reachable(p: _Problem, choice: ModelChoice, row: int) -> float:
     return float(np.max(grid * np.exp(lng)))
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class ActivityConversion(Record):
     """The analyte's molality, activity and γ in its matrix, and how they were obtained.
 
@@ -538,7 +538,7 @@ def px_from_activity(activity):
     return float(out) if out.ndim == 0 else out
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class StandardRecipe(Record):
     """How much salt makes a standard of a given analyte activity."""
 

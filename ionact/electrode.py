@@ -156,7 +156,7 @@ def relative_error_to_mv(relative_error, charge, temperature=25.0):
     return _out(nernst_slope(charge, temperature) * np.log10(1.0 + e))
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class NikolskyResult(Record):
     """Apparent activity under interference and the resulting bias."""
 
@@ -249,7 +249,7 @@ def nikolsky_eisenman(analyte: str, activity, interferents: Mapping[str, tuple],
     return NikolskyResult(ion.name, _out(a), _out(apparent), _out(rel), _out(mv), contrib)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class TemperatureError(Record):
     """Error from measuring at T2 with a calibration made at T1.
 

@@ -784,6 +784,12 @@ class Speciation:
         lines += [f"note: {n}" for n in self.notes]
         return "\n".join(lines)
 
+    def _repr_html_(self) -> str:
+        from ._display import html_table
+
+        rows = [(s, self.molality[i], self.gamma[i], self.activity[i]) for i, s in enumerate(self.species)]
+        return html_table(("species", "molality / mol kg⁻¹", "γ", "activity"), rows, repr(self), limit=40)
+
     def __repr__(self) -> str:
         shape = self.molality.shape[1:]
         return (f"Speciation({len(self.species)} species{f', batch {shape}' if shape else ''}, model "

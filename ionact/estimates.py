@@ -34,7 +34,7 @@ EC_FRESH_LIMIT = 5000.0  # µS/cm; beyond it the rules of thumb are not for "fre
 TDS_FRESH_LIMIT = 3000.0  # mg/L (common practice)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class IonicStrengthEstimate(Record):
     """An ionic strength estimated by a rule of thumb, with the rule named.
 

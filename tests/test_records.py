@@ -63,3 +63,32 @@ def test_arrays_and_mappings_inside_results_are_read_only():
     with pytest.raises(ValueError):
         res["solution"].molality_array[0, 0] = 1.0
     assert isinstance(res["standard"], StandardRecipe) and np.isfinite(res["standard"].grams_per_litre)
+
+
+def test_batch_results_display_briefly():
+    # a 20 000-sample result is a line in a console and a small table in a notebook
+    import warnings
+
+    import ionact as ia
+
+    n = 20_000
+    sol = ia.Solution({"Na+": np.full(n, 0.1), "Cl-": np.full(n, 0.1)})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ia.ValidityRangeWarning)
+        cal = ia.calibrate("F-", [1e-5, 1e-4, 1e-3, 1e-2], [120.1, 61.0, 2.1, -56.9], model="davies")
+        design = ia.design_adjuster("NO3-", {"(NH4)2SO4": 2.0}, samples=ia.SamplePopulation(ionic_strength=(0, 0.05)),
+                                    analyte_range=(1e-5, 1e-3), budget=ia.Budget(mv=1.0), solve="none",
+                                    model="davies")
+        results = [
+            ia.activity_coefficients(sol, "davies"),
+            ia.speciate(sol, model="davies", pH=7.0),
+            ia.quantify(cal, np.linspace(0.0, 100.0, n)),
+            ia.activity_from_concentration("F-", np.full(n, 1e-4), model="davies"),
+            ia.ionic_strength_from_conductivity(np.full(n, 500.0)),
+            ia.check_samples({"analyte": [1e-4] * n, "ionic_strength": [0.01] * n}, design),
+            cal,
+            design,
+        ]
+    for r in results:
+        assert len(repr(r)) < 1200, type(r).__name__
+        assert 0 < len(r._repr_html_()) < 20_000, type(r).__name__

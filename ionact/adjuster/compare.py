@@ -13,7 +13,7 @@ from .design import AdjusterDesign
 __all__ = ["AdjusterComparison", "CandidateRow", "compare_adjusters"]
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class CandidateRow(Record):
     """One candidate's standing, read from its design's check fields (never from text)."""
 

@@ -204,6 +204,14 @@ class AdjusterDesign:
 
         return plot_design(self, path, ax=ax)
 
+    def _repr_html_(self) -> str:
+        from .._display import html_table
+
+        recipe = html_table(("component", "role", "mol/L", "g/L"),
+                            [(r.component, r.role, r.mol_per_l, r.g_per_l) for r in self.recipe], repr(self))
+        checks = html_table(("check", "status", "detail"), [(c.name, c.status, c.message) for c in self.checks])
+        return recipe + checks
+
     def __repr__(self) -> str:
         stock = ", ".join(f"{r.component} {r.mol_per_l:.4g} mol/L" for r in self.recipe)
         return (f"AdjusterDesign({typeset(self.analyte)}: {stock}"

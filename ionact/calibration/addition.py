@@ -36,7 +36,7 @@ __all__ = ["AdditionResult", "known_addition", "multiple_addition", "double_addi
 DEFAULT_READING_SD_MV = 0.1  # standard deviation of one potential reading without a calibration (common practice)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class AdditionResult(Record):
     """A standard-addition result.
 

@@ -44,7 +44,7 @@ COVERAGE_FACTOR = 2.0
 DEFAULT_BRIDGE = {"K+": 3.0, "Cl-": 3.0}  # mol/L: the usual reference-electrode filling (common practice)
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class BudgetTerm(Record):
     """One term: ``kind`` is "standard" (a standard uncertainty) or "bound" (a largest error,
     read as rectangular); ``u_mv`` is its standard uncertainty; "not assessed" terms carry NaN."""
@@ -57,7 +57,7 @@ class BudgetTerm(Record):
     detail: str
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class ErrorBudget(Record):
     """Every term, and their combination (mV and % of the concentration)."""
 

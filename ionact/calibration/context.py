@@ -26,7 +26,7 @@ __all__ = ["Measurement", "measurement_for", "molar_values", "millivolts", "MAX_
 MAX_POINTS = 10_000_000  # sanity bound on the length of an input series
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class Measurement(Record):
     """How a solution is measured: the analyte, the temperature, the activity model, and the
     matrix the electrode sees.

@@ -36,7 +36,7 @@ DEFAULT_LINEARITY_MV = 1.0  # largest residual of a standard in the linear range
 F_TEST_LEVEL = 0.95  # the curved form is taken when its extra parameter is significant at this level
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class CalibrationCheck(Record):
     """One acceptance check: ``status`` is "ok", "warning" or "fail"; ``value`` and ``limit``
     in ``unit``; ``detail`` in words."""
@@ -53,7 +53,7 @@ class CalibrationCheck(Record):
                 f"{self.detail}")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class Calibration(Record):
     """A fitted calibration: the numbers every later step (quantitation, detection limit,
     the batch check's calibrated range) reads.

@@ -35,7 +35,7 @@ DEFAULT_DRIFT_LIMIT_MV = 2.0  # largest offset of a check standard from its cali
 DEFAULT_COVERAGE = 0.95
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class DriftCheck(Record):
     """A check standard measured during the run.
 
@@ -64,7 +64,7 @@ class DriftCheck(Record):
         object.__setattr__(self, "potentials_mv", readonly(e))
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class Quantitation(Record):
     """Concentrations of a batch with their intervals and statuses (every row, in order).
 

@@ -39,7 +39,7 @@ __all__ = ["Selectivity", "selectivity", "METHODS"]
 METHODS = ("separate", "fixed", "matched")
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, repr=False)
 class Selectivity(Record):
     """A measured selectivity coefficient.
 
