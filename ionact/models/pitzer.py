@@ -29,7 +29,7 @@ from ..errors import MissingParameterError
 from ..tables import pitzer_binary_table, pitzer_mixing_table
 
 __all__ = ["PitzerSet", "pitzer_set", "log_gamma", "osmotic", "binary_log_mean", "j_function",
-           "pair_shares", "pair_ionic_strength_limits", "PITZER_B", "PITZER_MAX_IONIC_STRENGTH"]
+           "equivalent_fractions", "pair_ionic_strength_limits", "PITZER_B", "PITZER_MAX_IONIC_STRENGTH"]
 
 PITZER_B = 1.2
 PITZER_MAX_IONIC_STRENGTH = 6.0  # mol/kg: for mixtures whose pairs state no limit of their own
@@ -40,6 +40,11 @@ _JC = (4.581, 0.7237, 0.0120, 0.528)
 def j_function(x):
     """Pitzer's (1975) approximation of J(x) and its derivative J'(x).
 
+    Parameters
+    ----------
+    x : array_like
+        x = 6 z_i z_j A_φ √I, dimensionless (≥ 0).
+
     Returns
     -------
     (J, J') : tuple of ndarray
@@ -47,9 +52,13 @@ def j_function(x):
     x = np.asarray(x, dtype=float)
     c1, c2, c3, c4 = _JC
     xs = np.maximum(x, 1e-30)
-    e = np.exp(-c3 * xs**c4)
-    d = 4.0 + c1 * xs ** (-c2) * e
-    dd = c1 * e * xs ** (-c2) * (-c2 / xs - c3 * c4 * xs ** (c4 - 1.0))
+    lx = np.log(xs)  # the powers by one log and two exps (a power costs more than an exp)
+    p2 = np.exp(-c2 * lx)  # x^-C2
+    p4 = np.exp(c4 * lx)  # x^C4
+    e = np.exp(-c3 * p4)
+    ce = c1 * p2 * e
+    d = 4.0 + ce
+    dd = ce * (-c2 - c3 * c4 * p4) / xs
     j = xs / d
     jp = (d - xs * dd) / d**2
     return j, jp
@@ -67,14 +76,6 @@ def _g(x):
         g = np.where(small, 1.0 - 2.0 * x / 3.0 + x**2 / 4.0, g)
         gp = np.where(small, -2.0 * x / 3.0 + x**2 / 2.0, gp)
     return g, gp, np.exp(-x)
-
-
-def _g_pairs(alpha: np.ndarray, sq: np.ndarray):
-    """g, g', exp(−α√I) for an (nc, na) matrix of α, evaluated once per distinct α."""
-    ua, inv = np.unique(alpha, return_inverse=True)
-    g, gp, ex = _g(ua[:, None] * sq[None, :])
-    inv = inv.reshape(alpha.shape)
-    return g[inv], gp[inv], ex[inv]
 
 
 @dataclass(frozen=True)
@@ -194,24 +195,6 @@ def pitzer_set(cations: tuple[str, ...], anions: tuple[str, ...], cation_charges
     )
 
 
-def _at_temperature(p: PitzerSet, t: np.ndarray) -> list[np.ndarray]:
-    """β0, β1, Cφ at temperature t (N,), shapes (nc, na, N) or (nc, na, 1).
-
-    Pairs with tabulated first derivatives are extrapolated linearly from 25 °C; the others
-    keep their 25 °C values. Where that is valid is the business of the range check
-    (:func:`ionact.models.registry` reports it), not of this kernel.
-    """
-    dt = t - 25.0
-    out = []
-    for base, der in ((p.beta0, p.dbeta0), (p.beta1, p.dbeta1), (p.cphi, p.dcphi)):
-        has = np.isfinite(der)
-        if np.any(has) and np.any(dt != 0):
-            out.append(base[..., None] + np.where(has, der, 0.0)[..., None] * dt[None, None, :])
-        else:
-            out.append(base[..., None])
-    return out
-
-
 def pair_ionic_strength_limits(p: PitzerSet) -> np.ndarray:
     """Ionic strength (nc, na) at which each pure salt reaches its fitted molality limit.
 
@@ -225,117 +208,177 @@ def pair_ionic_strength_limits(p: PitzerSet) -> np.ndarray:
     return np.asarray(p.max_molality * w)
 
 
-def pair_shares(p: PitzerSet, mc: np.ndarray, ma: np.ndarray) -> np.ndarray:
-    """Equivalent-fraction share y_c·x_a (nc, na, N) of each cation–anion pair in each sample."""
+def equivalent_fractions(p: PitzerSet, mc: np.ndarray, ma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Equivalent fractions y_c (nc, N) of the cations and x_a (na, N) of the anions; the share
+    of the pair c–a in a sample is y_c·x_a."""
     ec = p.zc[:, None] * mc
     ea = p.za[:, None] * ma
     with np.errstate(invalid="ignore", divide="ignore"):
         y = np.where(ec.sum(axis=0) > 0, ec / ec.sum(axis=0), 0.0)
         x = np.where(ea.sum(axis=0) > 0, ea / ea.sum(axis=0), 0.0)
-    return np.asarray(y[:, None, :] * x[None, :, :])
+    return np.asarray(y), np.asarray(x)
 
 
-def _etheta(z: np.ndarray, aphi: np.ndarray, ionic: np.ndarray):
-    """Eθ and Eθ' for every like-sign pair: arrays (n, n, N); zero for equal charges."""
-    n = len(z)
-    N = ionic.shape[0]
-    et = np.zeros((n, n, N))
-    etp = np.zeros((n, n, N))
-    if n < 2 or np.all(z == z[0]):
-        return et, etp
-    i_s = np.maximum(ionic, 1e-30)
-    sq = np.sqrt(i_s)
-    for p in range(n):
-        for q in range(p + 1, n):
-            if z[p] == z[q]:
-                continue
-            zz = z[p] * z[q]
-            xpq = 6.0 * zz * aphi * sq
-            xpp = 6.0 * z[p] ** 2 * aphi * sq
-            xqq = 6.0 * z[q] ** 2 * aphi * sq
-            (jpq, jppq), (jpp, jppp), (jqq, jpqq) = j_function(xpq), j_function(xpp), j_function(xqq)
-            e = zz / (4.0 * i_s) * (jpq - 0.5 * jpp - 0.5 * jqq)
-            ep = -e / i_s + zz / (8.0 * i_s**2) * (xpq * jppq - 0.5 * xpp * jppp - 0.5 * xqq * jpqq)
-            et[p, q] = et[q, p] = e
-            etp[p, q] = etp[q, p] = ep
-    return et, etp
+class _Like:
+    """The like-sign mixing terms Eθ(I), Eθ'(I) of one set of ions (cations or anions), kept
+    per distinct pair of charges: J(x) is evaluated once per distinct charge product (the
+    cache ``j`` is shared between cations and anions), and the sums over ion pairs are
+    (n, n) indicator matrices times the molalities."""
+
+    def __init__(self, z: np.ndarray, aphi: np.ndarray, sq: np.ndarray, i_s: np.ndarray, on: bool,
+                 j: dict[float, tuple[np.ndarray, np.ndarray, np.ndarray]]) -> None:
+        self.pairs: list[tuple[np.ndarray, np.ndarray, np.ndarray]] = []  # (indicator, Eθ, Eθ')
+        charges = sorted({float(v) for v in z})
+        if not on or len(charges) < 2:
+            return
+
+        def jx(zz: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+            if zz not in j:
+                x = 6.0 * zz * aphi * sq
+                j[zz] = (x, *j_function(x))
+            return j[zz]
+
+        for a in range(len(charges)):
+            for b in range(a + 1, len(charges)):
+                zp, zq = charges[a], charges[b]
+                zz = zp * zq
+                (xpq, jpq, jppq), (xpp, jpp, jppp), (xqq, jqq, jpqq) = jx(zz), jx(zp * zp), jx(zq * zq)
+                e = zz / (4.0 * i_s) * (jpq - 0.5 * jpp - 0.5 * jqq)
+                ep = -e / i_s + zz / (8.0 * i_s**2) * (xpq * jppq - 0.5 * xpp * jppp - 0.5 * xqq * jpqq)
+                ind = ((z[:, None] == zp) & (z[None, :] == zq)) | ((z[:, None] == zq) & (z[None, :] == zp))
+                self.pairs.append((ind.astype(float), e, ep))
+
+    def row_sums(self, m: np.ndarray) -> np.ndarray:
+        """Σ_j Eθ_ij m_j for every ion i, (n, N)."""
+        out = np.zeros_like(m)
+        for ind, e, _ in self.pairs:
+            out += e * (ind @ m)
+        return out
+
+    def quadratic(self, m: np.ndarray, which: int) -> np.ndarray:
+        """Σ_ij m_i m_j Eθ_ij (which=1) or Eθ'_ij (which=2), (N,)."""
+        out = np.zeros(m.shape[1])
+        for term in self.pairs:
+            out += term[which] * np.einsum("iN,iN->N", m, term[0] @ m)
+        return out
 
 
-def _terms(p: PitzerSet, mc, ma, t, aphi, unsymmetrical=True):
-    """Shared intermediate terms; mc (nc, N), ma (na, N), t (N,), aphi (N,)."""
-    ionic = 0.5 * (p.zc**2 @ mc + p.za**2 @ ma)
-    sq = np.sqrt(ionic)
-    i_s = np.maximum(ionic, 1e-30)
-    b0, b1, cphi = _at_temperature(p, t)
-    g1, g1p, e1 = _g_pairs(p.alpha1, sq)
-    B = b0 + b1 * g1
-    Bp = b1 * g1p / i_s
-    Bphi = b0 + b1 * e1
-    if np.any(p.beta2):
-        g2, g2p, e2 = _g_pairs(p.alpha2, sq)
-        beta2 = p.beta2[..., None]
-        B = B + beta2 * g2
-        Bp = Bp + beta2 * g2p / i_s
-        Bphi = Bphi + beta2 * e2
-    C = cphi / (2.0 * np.sqrt(p.zc[:, None] * p.za[None, :]))[..., None]
-    Z = p.zc @ mc + p.za @ ma
-    if unsymmetrical:
-        etc, etpc = _etheta(p.zc, aphi, ionic)
-        eta, etpa = _etheta(p.za, aphi, ionic)
-    else:
-        etc = etpc = np.zeros((len(p.zc), len(p.zc), ionic.size))
-        eta = etpa = np.zeros((len(p.za), len(p.za), ionic.size))
-    Phic = p.theta_c[..., None] + etc
-    Phia = p.theta_a[..., None] + eta
-    return dict(I=ionic, sq=sq, B=B, Bp=Bp, Bphi=Bphi, C=C, Z=Z, Phic=Phic, Phia=Phia,
-                Phipc=etpc, Phipa=etpa, Phiphic=Phic + ionic * etpc, Phiphia=Phia + ionic * etpa)
+class _Pairs:
+    """The cation–anion sums of the B and C terms, as matrix products over (nc, na) parameter
+    matrices: β1 and β2 are split by their α, so g(α√I) is one (N,) array per distinct α and
+    no (nc, na, N) array is formed. Temperature enters through the tabulated first
+    derivatives, linearly from 25 °C, as a second matrix times (t − 25)."""
+
+    def __init__(self, p: PitzerSet, mc: np.ndarray, ma: np.ndarray, t: np.ndarray, sq: np.ndarray,
+                 i_s: np.ndarray, phi: bool = False) -> None:
+        dt = t - 25.0
+        self.bc = np.zeros_like(mc)  # Σ_a m_a B_ca
+        self.ba = np.zeros_like(ma)  # Σ_c m_c B_ca
+        self.bp = np.zeros(mc.shape[1])  # Σ_ca m_c m_a B'_ca
+        self.bphi = np.zeros(mc.shape[1])  # Σ_ca m_c m_a Bφ_ca
+        varies = bool(np.any(dt != 0))
+        for base, der, alpha in ((p.beta0, p.dbeta0, None), (p.beta1, p.dbeta1, p.alpha1), (p.beta2, None, p.alpha2)):
+            for mat, dmat, a in _by_alpha(base, der if varies else None, alpha):
+                if alpha is None:
+                    g = gp = ex = None
+                else:
+                    g, gp, ex = _g(a * sq)
+                bc, ba, pair = _sums(mat, dmat, dt, mc, ma, need_pair=phi or gp is not None)
+                if not phi:
+                    self.bc += bc if g is None else g * bc
+                    self.ba += ba if g is None else g * ba
+                else:
+                    self.bphi += pair if ex is None else ex * pair
+                if gp is not None:
+                    self.bp += gp / i_s * pair
+        scale = 1.0 / (2.0 * np.sqrt(p.zc[:, None] * p.za[None, :]))
+        dc = p.dcphi if varies and np.any(np.isfinite(p.dcphi)) else None
+        self.cc, self.ca, self.cs = _sums(p.cphi * scale, None if dc is None else np.where(np.isfinite(dc), dc, 0.0)
+                                          * scale, dt, mc, ma)
+
+
+def _by_alpha(base: np.ndarray, der: np.ndarray | None, alpha: np.ndarray | None
+              ) -> list[tuple[np.ndarray, np.ndarray | None, float]]:
+    """The parameter matrix split into one matrix per distinct α (zero elsewhere), each with
+    its temperature-derivative matrix (None when no pair has one)."""
+    d = None if der is None or not np.any(np.isfinite(der)) else np.where(np.isfinite(der), der, 0.0)
+    if not np.any(base) and d is None:
+        return []
+    if alpha is None:
+        return [(base, d, 0.0)]
+    out = []
+    for a in np.unique(alpha[(base != 0) | (d != 0 if d is not None else False)]):
+        sel = alpha == a
+        out.append((np.where(sel, base, 0.0), None if d is None else np.where(sel, d, 0.0), float(a)))
+    return out
+
+
+def _sums(mat: np.ndarray, dmat: np.ndarray | None, dt: np.ndarray, mc: np.ndarray, ma: np.ndarray,
+          need_pair: bool = True) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Σ_a X_ca m_a (nc, N), Σ_c X_ca m_c (na, N) and Σ_ca m_c m_a X_ca (N,) for X = mat + dmat·dt
+    (the last as zeros when not ``need_pair``)."""
+    bc = mat @ ma
+    ba = mat.T @ mc
+    if dmat is not None:
+        bc += dt * (dmat @ ma)
+        ba += dt * (dmat.T @ mc)
+    return bc, ba, np.einsum("cN,cN->N", mc, bc) if need_pair else np.zeros(0)
+
+
+def _psi(psi: np.ndarray, m_like: np.ndarray, m_other: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The ψ sums for ψ (n, n, k) over like-sign ions i, j and opposite ions a:
+    Σ_ja ψ_ija m_j m_a (n, N) and Σ_ij ψ_ija m_i m_j (k, N).
+    One (n, n) product per opposite ion that has a nonzero ψ."""
+    n, k = psi.shape[0], psi.shape[2]
+    like = np.zeros((n, m_like.shape[1]))
+    other = np.zeros((k, m_like.shape[1]))
+    for a in range(k):
+        if not np.any(psi[:, :, a]):
+            continue
+        pm = psi[:, :, a] @ m_like
+        like += pm * m_other[a]
+        other[a] = np.einsum("iN,iN->N", m_like, pm)
+    return like, other
 
 
 def log_gamma(p: PitzerSet, mc, ma, t, aphi, unsymmetrical=True):
     """Natural-log activity coefficients of the cations (nc, N) and anions (na, N)."""
-    k = _terms(p, mc, ma, t, aphi, unsymmetrical)
-    sq = k["sq"]
+    ionic = 0.5 * (p.zc**2 @ mc + p.za**2 @ ma)
+    sq = np.sqrt(ionic)
+    i_s = np.maximum(ionic, 1e-30)
     b = PITZER_B
-    F = (
-        -aphi * (sq / (1.0 + b * sq) + (2.0 / b) * np.log1p(b * sq))
-        + np.einsum("caN,cN,aN->N", k["Bp"], mc, ma)
-        + 0.5 * np.einsum("cdN,cN,dN->N", k["Phipc"], mc, mc)
-        + 0.5 * np.einsum("abN,aN,bN->N", k["Phipa"], ma, ma)
-    )
-    Z, B, C = k["Z"], k["B"], k["C"]
-    cs = np.einsum("caN,cN,aN->N", C, mc, ma)
-    two_bzc = 2.0 * B + Z * C
-    ln_c = (
-        p.zc[:, None] ** 2 * F
-        + np.einsum("caN,aN->cN", two_bzc, ma)
-        + np.einsum("cdN,dN->cN", 2.0 * k["Phic"], mc)
-        + np.einsum("cda,dN,aN->cN", p.psi_cca, mc, ma)
-        + 0.5 * np.einsum("abc,aN,bN->cN", p.psi_aac, ma, ma)
-        + p.zc[:, None] * cs
-    )
-    ln_a = (
-        p.za[:, None] ** 2 * F
-        + np.einsum("caN,cN->aN", two_bzc, mc)
-        + np.einsum("abN,bN->aN", 2.0 * k["Phia"], ma)
-        + np.einsum("abc,bN,cN->aN", p.psi_aac, ma, mc)
-        + 0.5 * np.einsum("cda,cN,dN->aN", p.psi_cca, mc, mc)
-        + p.za[:, None] * cs
-    )
+    k = _Pairs(p, mc, ma, t, sq, i_s)
+    j: dict[float, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+    lc, la = _Like(p.zc, aphi, sq, i_s, unsymmetrical, j), _Like(p.za, aphi, sq, i_s, unsymmetrical, j)
+    f = (-aphi * (sq / (1.0 + b * sq) + (2.0 / b) * np.log1p(b * sq)) + k.bp
+         + 0.5 * lc.quadratic(mc, 2) + 0.5 * la.quadratic(ma, 2))
+    z = p.zc @ mc + p.za @ ma
+    psi_c, psi_ac = _psi(p.psi_cca, mc, ma)  # Σ_da ψ_cda m_d m_a; Σ_cd ψ_cda m_c m_d per anion
+    psi_a, psi_ca = _psi(p.psi_aac, ma, mc)
+    ln_c = (p.zc[:, None] ** 2 * f + 2.0 * k.bc + z * k.cc + 2.0 * (p.theta_c @ mc + lc.row_sums(mc))
+            + psi_c + 0.5 * psi_ca + p.zc[:, None] * k.cs)
+    ln_a = (p.za[:, None] ** 2 * f + 2.0 * k.ba + z * k.ca + 2.0 * (p.theta_a @ ma + la.row_sums(ma))
+            + psi_a + 0.5 * psi_ac + p.za[:, None] * k.cs)
     return ln_c, ln_a
 
 
 def osmotic(p: PitzerSet, mc, ma, m_neutral_total, t, aphi, unsymmetrical=True):
     """Osmotic coefficient φ (N,) of the mixture."""
-    k = _terms(p, mc, ma, t, aphi, unsymmetrical)
-    ionic, sq = k["I"], k["sq"]
+    ionic = 0.5 * (p.zc**2 @ mc + p.za**2 @ ma)
+    sq = np.sqrt(ionic)
+    i_s = np.maximum(ionic, 1e-30)
+    k = _Pairs(p, mc, ma, t, sq, i_s, phi=True)
+    j: dict[float, tuple[np.ndarray, np.ndarray, np.ndarray]] = {}
+    lc, la = _Like(p.zc, aphi, sq, i_s, unsymmetrical, j), _Like(p.za, aphi, sq, i_s, unsymmetrical, j)
+    z = p.zc @ mc + p.za @ ma
     total = mc.sum(axis=0) + ma.sum(axis=0) + m_neutral_total
     s = (
         -aphi * ionic * sq / (1.0 + PITZER_B * sq)
-        + np.einsum("caN,cN,aN->N", k["Bphi"] + k["Z"] * k["C"], mc, ma)
-        + 0.5 * np.einsum("cdN,cN,dN->N", k["Phiphic"], mc, mc)
-        + 0.5 * np.einsum("cda,cN,dN,aN->N", p.psi_cca, mc, mc, ma)
-        + 0.5 * np.einsum("abN,aN,bN->N", k["Phiphia"], ma, ma)
-        + 0.5 * np.einsum("abc,aN,bN,cN->N", p.psi_aac, ma, ma, mc)
+        + k.bphi + z * k.cs
+        + 0.5 * (np.einsum("cN,cN->N", mc, p.theta_c @ mc) + lc.quadratic(mc, 1) + ionic * lc.quadratic(mc, 2))
+        + 0.5 * np.einsum("aN,aN->N", _psi(p.psi_cca, mc, ma)[1], ma)
+        + 0.5 * (np.einsum("aN,aN->N", ma, p.theta_a @ ma) + la.quadratic(ma, 1) + ionic * la.quadratic(ma, 2))
+        + 0.5 * np.einsum("cN,cN->N", _psi(p.psi_aac, ma, mc)[1], mc)
     )
     with np.errstate(invalid="ignore", divide="ignore"):
         phi = 1.0 + 2.0 * s / total

@@ -401,26 +401,30 @@ def _v_pitzer(b: Batch, o: Options, imax: float) -> list[Violation]:
     ci, ai, p = _pitzer_split(b, o)
     if not (ci.size and ai.size):
         return _range("pitzer", pz.PITZER_MAX_IONIC_STRENGTH, imax)
-    share = pz.pair_shares(p, b.m[ci], b.m[ai])  # (nc, na, N)
     limit = pz.pair_ionic_strength_limits(p)  # (nc, na)
+    t_lo, t_hi = float(np.nanmin(b.t)), float(np.nanmax(b.t))
+    # only pairs that some sample takes past their limits need their shares (one (N,) pass each)
+    past_i = np.isfinite(limit) & (imax > limit)
+    past_t = (t_lo < p.t_range[..., 0]) | (t_hi > p.t_range[..., 1])
     out: list[Violation] = []
-    matters = share >= PAIR_SHARE_FOR_LIMITS
-    over = matters & (b.ionic[None, None, :] > limit[:, :, None])
-    for i, j in zip(*np.nonzero(np.any(over, axis=2)), strict=True):
-        k = int(np.argmax(np.where(over[i, j], b.ionic, -np.inf)))
-        out.append(Violation("ionic-strength", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters hold to "
-                             f"{p.max_molality[i, j]:g} mol/kg of the salt (I ≤ {limit[i, j]:.3g} mol/kg); here "
-                             f"I = {float(b.ionic[k]):.4g} mol/kg"))
+    if np.any(past_i | past_t):
+        y, x = pz.equivalent_fractions(p, b.m[ci], b.m[ai])
+        for i, j in zip(*np.nonzero(past_i), strict=True):
+            over = (y[i] * x[j] >= PAIR_SHARE_FOR_LIMITS) & (b.ionic > limit[i, j])
+            if np.any(over):
+                k = int(np.argmax(np.where(over, b.ionic, -np.inf)))
+                out.append(Violation("ionic-strength", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters "
+                                     f"hold to {p.max_molality[i, j]:g} mol/kg of the salt (I ≤ {limit[i, j]:.3g} "
+                                     f"mol/kg); here I = {float(b.ionic[k]):.4g} mol/kg"))
+        for i, j in zip(*np.nonzero(past_t), strict=True):
+            lo, hi = p.t_range[i, j]
+            far = ((b.t < lo) | (b.t > hi)) & (y[i] * x[j] >= PAIR_SHARE_FOR_LIMITS)
+            if np.any(far):
+                what = ("linear temperature derivatives" if np.isfinite(p.dbeta0[i, j]) else "25 °C values")
+                out.append(Violation("temperature", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters "
+                                     f"({what}) hold for {lo:g}–{hi:g} °C; temperature {float(b.t[far][0]):g} °C"))
     if not np.any(np.isfinite(limit)) and imax > pz.PITZER_MAX_IONIC_STRENGTH:
         out += _range("pitzer", pz.PITZER_MAX_IONIC_STRENGTH, imax)
-    used = np.any(matters, axis=2)
-    for i, j in zip(*np.nonzero(used), strict=True):
-        lo, hi = p.t_range[i, j]
-        far = (b.t < lo) | (b.t > hi)
-        if np.any(far):
-            what = ("linear temperature derivatives" if np.isfinite(p.dbeta0[i, j]) else "25 °C values")
-            out.append(Violation("temperature", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters ({what}) "
-                                 f"hold for {lo:g}–{hi:g} °C; temperature {float(b.t[far][0]):g} °C"))
     if (np.any(p.theta_c) or np.any(p.theta_a)):
         out += _outside_window("pitzer", "mixing terms θ, ψ", b.t)
     return out
