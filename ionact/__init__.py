@@ -9,23 +9,6 @@ __version__ = "0.2.0.dev0"
 from typing import TYPE_CHECKING, Any
 
 from . import models, water
-from .activity import (
-    ActivityCoefficients,
-    activity_coefficients,
-    compare_models,
-    mean_activity_coefficient,
-    osmotic_coefficient,
-    water_activity,
-)
-from .conversion import (
-    activity_from_concentration,
-    activity_from_px,
-    concentration_from_activity,
-    px_from_activity,
-    standard_for_activity,
-)
-from .electrode import mv_to_relative_error, nernst_slope, nikolsky_eisenman, relative_error_to_mv, temperature_error
-from .equilibrium import Complex, Speciation, ph_of, speciate
 from .errors import (
     ConvergenceError,
     InfeasibleDesignError,
@@ -39,11 +22,18 @@ from .errors import (
     ValidityRangeWarning,
     strict,
 )
-from .estimates import IonicStrengthEstimate, ionic_strength_from_conductivity, ionic_strength_from_tds
 from .solution import Solution
 from .species import Ion, Salt, register_ion
 
 if TYPE_CHECKING:
+    from .activity import (
+        ActivityCoefficients,
+        activity_coefficients,
+        compare_models,
+        mean_activity_coefficient,
+        osmotic_coefficient,
+        water_activity,
+    )
     from .adjuster import (
         AdjusterComparison,
         AdjusterDesign,
@@ -72,12 +62,39 @@ if TYPE_CHECKING:
         quantify,
         selectivity,
     )
+    from .conversion import (
+        activity_from_concentration,
+        activity_from_px,
+        concentration_from_activity,
+        px_from_activity,
+        standard_for_activity,
+    )
+    from .electrode import (
+        mv_to_relative_error,
+        nernst_slope,
+        nikolsky_eisenman,
+        relative_error_to_mv,
+        temperature_error,
+    )
+    from .equilibrium import Complex, Speciation, ph_of, speciate
+    from .estimates import IonicStrengthEstimate, ionic_strength_from_conductivity, ionic_strength_from_tds
     from .samples import SampleCheck, check_samples
 
-# the design and batch jobs load on first use, so that ``import ionact`` stays light
-_LAZY = {name: "adjuster" for name in ("AdjusterComparison", "AdjusterDesign", "Budget", "Buffer", "Check",
-                                       "Electrode", "SamplePopulation", "StockComponent", "compare_adjusters",
-                                       "design_adjuster")}
+# every job's module loads on first use, so that ``import ionact`` stays light (most of a
+# module's import cost is creating its record classes)
+_LAZY = {name: "activity" for name in ("ActivityCoefficients", "activity_coefficients", "compare_models",
+                                       "mean_activity_coefficient", "osmotic_coefficient", "water_activity")}
+_LAZY.update({name: "conversion" for name in ("activity_from_concentration", "activity_from_px",
+                                              "concentration_from_activity", "px_from_activity",
+                                              "standard_for_activity")})
+_LAZY.update({name: "electrode" for name in ("mv_to_relative_error", "nernst_slope", "nikolsky_eisenman",
+                                             "relative_error_to_mv", "temperature_error")})
+_LAZY.update({name: "equilibrium" for name in ("Complex", "Speciation", "ph_of", "speciate")})
+_LAZY.update({name: "estimates" for name in ("IonicStrengthEstimate", "ionic_strength_from_conductivity",
+                                             "ionic_strength_from_tds")})
+_LAZY.update({name: "adjuster" for name in ("AdjusterComparison", "AdjusterDesign", "Budget", "Buffer", "Check",
+                                            "Electrode", "SamplePopulation", "StockComponent", "compare_adjusters",
+                                            "design_adjuster")})
 _LAZY.update({"SampleCheck": "samples", "check_samples": "samples"})
 _LAZY.update({name: "calibration" for name in ("AdditionResult", "Calibration", "DriftCheck", "Quantitation",
                                                "Selectivity", "calibrate", "double_addition", "junction_potential",

@@ -10,9 +10,11 @@ import csv
 import re
 from dataclasses import dataclass
 from functools import lru_cache
-from importlib import resources
+from pathlib import Path
 
 from .constants import PARAMETER_WINDOW
+
+_DATA = Path(__file__).parent / "data"  # the package's own tables (importlib.resources costs 6 ms of import)
 
 __all__ = [
     "IonRecord",
@@ -48,7 +50,7 @@ def canonical_name(formula: str, charge: int) -> str:
 
 
 def _rows(name: str) -> list[dict[str, str]]:
-    text = resources.files("ionact").joinpath("data", name).read_text(encoding="utf-8")
+    text = (_DATA / name).read_text(encoding="utf-8")
     return list(csv.DictReader(text.splitlines()))
 
 
