@@ -122,7 +122,7 @@ def _gamma(lg):
 def _size(size, model):
     """Ion sizes (Å): NaN passes through as NaN in that position; zero or negative is an error."""
     s = _array(size, "ion size", model)
-    if np.any(s <= 0):
+    if s.size and float(np.fmin.reduce(s, axis=None)) <= 0:  # one pass, NaN skipped
         raise InputError(f"{model}: ion size {s[s <= 0].flat[0]:g} Å must be positive")
     return s
 
@@ -209,7 +209,20 @@ def extended_debye_huckel(charge, ionic_strength, size, *, temperature=25.0) -> 
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "extended")
     b = water.dh_b_array(t)
-    return _gamma(_lg_extended(z * z, np.sqrt(i), a, b, _size(size, "extended")))
+    s = _size(size, "extended")
+    shape = np.broadcast_shapes(z.shape, i.shape, s.shape, a.shape)
+    if not shape:
+        return _gamma(_lg_extended(z * z, np.sqrt(i), a, b, s))
+    sq = np.sqrt(i)  # evaluated in place in one array of the result's shape: no temporaries of its size
+    x = np.empty(shape)
+    np.multiply(s, sq, out=x)
+    x *= b
+    x += 1.0
+    np.divide(sq, x, out=x)
+    x *= z
+    x *= z
+    x *= -_LN10 * a
+    return np.exp(x, out=x)
 
 
 def guntelberg(charge, ionic_strength, temperature=25.0) -> float | np.ndarray:
@@ -293,14 +306,18 @@ def davies(charge, ionic_strength, temperature=25.0, *, coefficient=DAVIES_COEFF
     0.7809
     """
     z, i, t, a = _prepare(charge, ionic_strength, temperature, "davies")
-    sq = np.sqrt(i)
-    x = sq / (1.0 + sq)
+    shape = np.broadcast_shapes(z.shape, i.shape, a.shape)
+    if not shape:
+        return _gamma(_lg_davies(z * z, np.sqrt(i), i, a, coefficient))
+    sq = np.sqrt(i)  # evaluated in place in one array of the result's shape
+    x = np.empty(shape)
+    np.add(sq, 1.0, out=x)
+    np.divide(sq, x, out=x)
     x -= coefficient * i
-    k = z * z
-    k = np.multiply(k, -_LN10 * a, out=k if k.shape == np.broadcast_shapes(k.shape, np.shape(a)) and k.ndim else None)
-    x = np.multiply(x, k)
-    g = np.exp(x, out=x) if isinstance(x, np.ndarray) and x.ndim else np.exp(x)
-    return float(g) if np.ndim(g) == 0 else g
+    x *= z
+    x *= z
+    x *= -_LN10 * a
+    return np.exp(x, out=x)
 
 
 def truesdell_jones(charge, ionic_strength, a_size, *, b_ion, temperature=25.0) -> float | np.ndarray:
