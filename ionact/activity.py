@@ -8,7 +8,7 @@ and why ``model="auto"`` chose what it chose.
 from __future__ import annotations
 
 import warnings
-from collections.abc import Iterator, Mapping
+from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -242,16 +242,14 @@ def activity_coefficients(
     from .equilibrium import held_ph, speciation_of, species_step
 
     step = species_step(batch.ions, batch.m, batch.t, name, opts, fallback, equilibrium=equilibrium,
-                        ph=held_ph(pH, solution.shape), species=species)
+                        ph=held_ph(pH, solution.shape), species=species, batch=batch)
     choice = step.choice
     for problem in step.violations:
         warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))
     notes = list(choice.lacking and [choice.reason] or []) + list(step.notes)
     shape = solution.shape
-    gam = {}
-    for k, n in enumerate(batch.names):
-        g = np.exp(LN10 * step.log10_gamma[k]).reshape(shape)
-        gam[n] = float(g) if g.ndim == 0 else g
+    by_charge = choice.info.charge_only and step.state is None  # free ions: one γ per charge
+    gam = _gammas(batch.names, batch.z, step.log10_gamma, shape, by_charge)
     out = ActivityCoefficients(gam, choice, notes, solution.ionic_strength, step.violations)
     out.index = solution.index
     out.speciation = speciation_of(step, shape, batch.t)
@@ -260,6 +258,25 @@ def activity_coefficients(
         out.free = {n: _plain(sp.gamma[sp.species.index(n)]) for n in batch.names}
         out.notes = out.notes + ("stoichiometric γ = a(free)/m(total): ions pair or complex here (see "
                                  ".speciation)",)
+    return out
+
+
+def _gammas(names: Sequence[str], z: np.ndarray, lg: np.ndarray, shape: tuple[int, ...], by_charge: bool
+            ) -> dict[str, float | np.ndarray]:
+    """γ = 10^lg of every ion in the solution's shape. Where the model gives every ion of a
+    charge the same γ (``by_charge``), the exponential is taken once per charge and copied."""
+    out: dict[str, float | np.ndarray] = {}
+    done: dict[float, np.ndarray] = {}
+    for k, n in enumerate(names):
+        key = float(z[k])
+        if by_charge and key != 0 and key in done:
+            g = done[key].copy()
+        else:
+            g = np.multiply(lg[k], LN10)
+            np.exp(g, out=g)
+            g = g.reshape(shape)
+            done[key] = g
+        out[n] = float(g) if g.ndim == 0 else g
     return out
 
 

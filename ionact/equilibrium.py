@@ -1113,13 +1113,14 @@ class Step:
 def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model: str, opts: Any,
                  fallback: str | None, *, equilibrium: bool | None = None, ph: np.ndarray | None = None,
                  species: Iterable[Complex] | None = None, choice: ModelChoice | None = None,
-                 max_iterations: int = MAX_ITERATIONS, checks: bool = True) -> Step:
+                 max_iterations: int = MAX_ITERATIONS, checks: bool = True, batch: Batch | None = None) -> Step:
     """Speciate where the inputs react (or as asked) and evaluate the model: one call for every job.
 
     ``checks=False`` skips the model's notes and range checks (for inner loops that call it
-    many times; the final evaluation of a job makes them).
+    many times; the final evaluation of a job makes them). ``batch`` is the inputs' Batch when
+    the caller has built it already.
     """
-    batch = Batch.of(inputs, m_in, t)
+    batch = batch if batch is not None else Batch.of(inputs, m_in, t)
     free_choice = choice or resolve_model(batch, model, options=opts, fallback=fallback)
     if equilibrium is False or (equilibrium is None and ph is None and species is None
                                 and not reacts(_network(inputs, None, _pairless(free_choice)))):

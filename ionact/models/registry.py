@@ -180,6 +180,7 @@ class ModelInfo:
     needs: Needs = field(repr=False)
     in_auto: bool = True
     extra_violations: Violations | None = field(default=None, repr=False)
+    charge_only: bool = False  # γ of a charged ion depends on it only through its charge (and I, T)
 
     def violations(self, batch: Batch, options: Options) -> list[Violation]:
         """Where this batch leaves the model's validity (ionic strength, salt limits, temperature)."""
@@ -282,8 +283,8 @@ def _k_davies(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
     notes: list[str] = []
     if o.davies_coefficient != dh.DAVIES_COEFFICIENT:
         notes.append(f"Davies linear coefficient {o.davies_coefficient} (default {dh.DAVIES_COEFFICIENT})")
-    lg = dh._lg_davies(z2, sq, b.ionic[None, :], a, o.davies_coefficient)
-    return _neutral_lg(b, o, lg, notes), notes
+    f = dh._lg_davies(1.0, sq, b.ionic[None, :], a, o.davies_coefficient)  # (1, N): the z² = 1 value
+    return _neutral_lg(b, o, z2 * f, notes), notes
 
 
 def _k_tj(b: Batch, o: Options) -> tuple[np.ndarray, list[str]]:
@@ -435,12 +436,13 @@ MODELS: dict[str, ModelInfo] = {
     m.name: m
     for m in [
         ModelInfo("limiting", "Debye–Hückel limiting law", dh.RANGES["limiting"], 10, _DH_CONV,
-                  "Debye & Hückel 1923", _k_limiting, _needs_nothing),
+                  "Debye & Hückel 1923", _k_limiting, _needs_nothing, charge_only=True),
         ModelInfo("extended", "extended Debye–Hückel (Kielland sizes)", dh.RANGES["extended"], 50, _DH_CONV,
                   "Kielland 1937", _k_extended, _needs_size),
         ModelInfo("guntelberg", "Güntelberg", dh.RANGES["guntelberg"], 30, _DH_CONV, "Güntelberg 1926",
-                  _k_guntelberg, _needs_nothing),
-        ModelInfo("davies", "Davies", dh.RANGES["davies"], 40, _DH_CONV, "Davies 1962", _k_davies, _needs_nothing),
+                  _k_guntelberg, _needs_nothing, charge_only=True),
+        ModelInfo("davies", "Davies", dh.RANGES["davies"], 40, _DH_CONV, "Davies 1962", _k_davies, _needs_nothing,
+                  charge_only=True),
         ModelInfo("truesdell-jones", "Truesdell–Jones", dh.RANGES["truesdell-jones"], 70, _DH_CONV,
                   "Truesdell & Jones 1974", _k_tj, _needs_tj),
         ModelInfo("b-dot", "B-dot (Helgeson)", dh.RANGES["b-dot"], 60, _DH_CONV, "Helgeson 1969", _k_bdot,
@@ -449,7 +451,7 @@ MODELS: dict[str, ModelInfo] = {
                   _needs_nothing, in_auto=False),
         ModelInfo("bates-guggenheim", "Bates–Guggenheim convention", dh.RANGES["bates-guggenheim"], 20,
                   "Bates–Guggenheim convention for single-ion activity (IUPAC 2002 pH recommendations)",
-                  "Buck et al. 2002", _k_bates, _needs_nothing, in_auto=False),
+                  "Buck et al. 2002", _k_bates, _needs_nothing, in_auto=False, charge_only=True),
         ModelInfo("sit", "specific ion interaction theory", sit_mod.SIT_MAX_IONIC_STRENGTH, 80,
                   "SIT (NEA) single-ion form; mean values are the measurable quantity",
                   "NEA TDB reviews", _k_sit, _needs_sit, extra_violations=_v_sit),
