@@ -136,14 +136,15 @@ def _batch(p: _Problem, m_analyte: np.ndarray, rows: np.ndarray | None = None) -
 
 
 def _step(p: _Problem, choice: ModelChoice | None, m_analyte: np.ndarray, rows=None, *, model: str = "auto",
-          opts: Any = None, fallback: str | None = None, checks: bool = False) -> Step:
-    """Steps 2–3 of the path (speciation where it applies, then the model) for the problem's batch."""
-    b = _batch(p, m_analyte, rows)
+          opts: Any = None, fallback: str | None = None, checks: bool = False, batch: Batch | None = None) -> Step:
+    """Steps 2–3 of the path (speciation where it applies, then the model) for the problem's batch
+    (``batch``, when the caller has built it for the same molalities)."""
+    b = batch if batch is not None else _batch(p, m_analyte, rows)
     ph = None if p.ph is None else (p.ph if rows is None else p.ph[rows])
     if choice is not None:
         model, opts, fallback = choice.requested, choice.options, choice.fallback
     return species_step(p.ions, b.m, b.t, model, opts, fallback, equilibrium=p.equilibrium, ph=ph,
-                        species=p.species, choice=choice, checks=checks)
+                        species=p.species, choice=choice, checks=checks, batch=b)
 
 
 def _ln_gamma(p: _Problem, choice: ModelChoice, m_analyte: np.ndarray, rows=None) -> np.ndarray:
@@ -152,11 +153,66 @@ def _ln_gamma(p: _Problem, choice: ModelChoice, m_analyte: np.ndarray, rows=None
 
 
 def _choose(p: _Problem, model: str, opts, fallback, m_guess: np.ndarray) -> ModelChoice:
+    """The model for the problem: "auto" chooses on the whole batch; a named model (or its
+    fallback) depends on the species alone, so one sample settles it."""
+    if model != "auto":
+        return _step(p, None, m_guess[:1], np.array([0]), model=model, opts=opts, fallback=fallback).choice
     return _step(p, None, m_guess, model=model, opts=opts, fallback=fallback).choice
 
 
 def _solve(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
-    """Smallest root of x + ln γ(e^x) − ln a = 0 for every sample; returns x and a status mask."""
+    """Smallest root of x + ln γ(e^x) − ln a = 0 for every sample; returns x and a status mask.
+
+    Models whose γ depends on the charge and I alone, on free ions, take Newton's method with
+    the analytic derivative (:func:`_solve_by_charge`); every other case, and any sample that
+    fast path leaves unconverged, the general safeguarded Newton–secant below through the
+    whole evaluation path.
+    """
+    fast = _solve_by_charge(p, choice, ln_a)
+    if fast is not None and bool(np.all(fast[1])):
+        return fast
+    return _solve_general(p, choice, ln_a)
+
+
+def _solve_by_charge(p: _Problem, choice: ModelChoice, ln_a: np.ndarray) -> tuple[np.ndarray, np.ndarray] | None:
+    """Newton on x = ln m with the analytic derivative, for free ions under a model whose γ
+    depends on the charge alone: I = I_matrix + q·m, ln γ = ln10·z²·f(I), F′ = 1 + ln10·z²·f′(I)·q·m.
+    None where it does not apply (a neutral analyte, another model, or ions that react)."""
+    z2 = float(p.z[p.k] ** 2)
+    if not choice.info.charge_only or z2 == 0:
+        return None
+    if _step(p, choice, np.exp(ln_a[:1]), np.array([0])).state is not None:
+        return None  # the analyte or its matrix speciates: the general path
+    from .models.debye_huckel import unit_log_gamma
+    from .water import dh_a_array
+
+    i0 = 0.5 * (p.z**2) @ p.base
+    q = 0.5 * float((p.z**2) @ p.stoich)
+    x_cap = math.log(MAX_IONIC_STRENGTH / (q or 1.0))
+    a = dh_a_array(p.t)
+    c = choice.options.davies_coefficient
+    k = LN10 * z2
+    x = ln_a.copy()
+    for _ in range(60):
+        m = np.exp(x)
+        f, df = unit_log_gamma(choice.name, i0 + q * m, a, c)
+        res = x + k * f - ln_a
+        d = k * q * m * df
+        d += 1.0
+        if not float(d.min(initial=np.inf)) > 0.05:
+            return None  # near a turning point of a·γ: the safeguarded general path
+        res /= d
+        x -= res  # the last Newton step is the most accurate iterate
+        if float(np.abs(res).max(initial=0.0)) < _TOL:
+            break
+    if float(x.max(initial=-np.inf)) > x_cap:
+        return None
+    f, _ = unit_log_gamma(choice.name, i0 + q * np.exp(x), a, c)
+    return x, np.abs(x + k * f - ln_a) < 1e-9
+
+
+def _solve_general(p: _Problem, choice: ModelChoice, ln_a: np.ndarray):
+    """The safeguarded Newton–secant root finder through the whole evaluation path."""
     # cap: the analyte alone (with its counter-ion) would reach MAX_IONIC_STRENGTH
     i_per_m = 0.5 * float((p.z**2) @ p.stoich) or 1.0
     x_cap = math.log(MAX_IONIC_STRENGTH / i_per_m)
@@ -268,7 +324,7 @@ def _out(x, shape):
 
 def _final(ion, counter, p, m_an, choice: ModelChoice, density=None) -> ActivityConversion:
     batch = _batch(p, m_an)
-    step = _step(p, choice, m_an, checks=True)
+    step = _step(p, choice, m_an, checks=True, batch=batch)
     for problem in step.violations:
         warn_range(str(problem))
     gamma = np.exp(LN10 * step.log10_gamma[p.k])

@@ -155,3 +155,48 @@ def test_temperature_error():
     assert e.activity_ratio == pytest.approx(1.0)
     g = ia.models.davies(1, 0.1, 30.0) / ia.models.davies(1, 0.1, 20.0)
     assert e.concentration_ratio == pytest.approx(g)
+
+
+@pytest.mark.parametrize("model", ["limiting", "guntelberg", "davies", "bates-guggenheim"])
+def test_single_charge_forms_and_their_slopes(model):
+    # the analytic log10 γ of a singly charged ion equals the model's own value, and its
+    # derivative equals a central difference (the conversion's Newton relies on both)
+    from ionact.models.debye_huckel import unit_log_gamma
+
+    i = np.geomspace(1e-4, 0.5, 30)
+    a = ia.water.debye_huckel_a(25.0)
+    f, df = unit_log_gamma(model, i, a)
+    own = getattr(ia.models, model.replace("-", "_"))(1, i, 25.0)
+    np.testing.assert_allclose(10**f, own, rtol=1e-13)
+    h = i * 1e-6
+    numeric = (unit_log_gamma(model, i + h, a)[0] - unit_log_gamma(model, i - h, a)[0]) / (2 * h)
+    np.testing.assert_allclose(df, numeric, rtol=1e-6)
+
+
+@pytest.mark.parametrize("analyte", ["F-", "Ca^2+"])
+def test_fast_conversion_equals_the_general_path(analyte):
+    # Newton with the analytic derivative (free ions, a model of charge and I alone) and the
+    # general root finder through the whole evaluation path agree to 1e-12
+    from ionact import conversion as cv
+
+    acts = np.geomspace(1e-7, 0.01, 200)
+    mat = ia.Solution.from_salts({"KNO3": np.geomspace(1e-4, 0.3, 200)})
+    an = ia.species.resolve_ion(analyte)
+    p = cv._problem(an, cv._counter(an, None), mat, acts.shape, None, False, None, None)
+    name, opts, fb = cv.choice_for("davies")
+    choice = cv._choose(p, name, opts, fb, acts)
+    fast = cv._solve_by_charge(p, choice, np.log(acts))
+    assert fast is not None and bool(np.all(fast[1]))
+    general, ok = cv._solve_general(p, choice, np.log(acts))
+    assert bool(np.all(ok))
+    np.testing.assert_allclose(np.exp(fast[0]), np.exp(general), rtol=1e-12)
+
+
+def test_fast_conversion_steps_aside_where_ions_react():
+    from ionact import conversion as cv
+
+    an = ia.species.resolve_ion("F-")
+    p = cv._problem(an, cv._counter(an, None), None, (3,), None, None, None, None)  # NaF pairs: speciated
+    name, opts, fb = cv.choice_for("davies")
+    acts = np.array([1e-5, 1e-4, 1e-3])
+    assert cv._solve_by_charge(p, cv._choose(p, name, opts, fb, acts), np.log(acts)) is None

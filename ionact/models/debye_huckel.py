@@ -71,6 +71,29 @@ def _lg_bates_guggenheim(z2, sqrt_i, a):
     return -a * z2 * sqrt_i / (1.0 + BATES_GUGGENHEIM_BA * sqrt_i)
 
 
+def unit_log_gamma(model: str, ionic: np.ndarray, a: np.ndarray, coefficient: float = DAVIES_COEFFICIENT
+                   ) -> tuple[np.ndarray, np.ndarray]:
+    """log10 γ of a singly charged ion, and its derivative with respect to I (kg/mol), under a
+    model whose γ depends on the charge alone (log10 γ_z = z² × this); I > 0 mol/kg.
+
+    The same expressions as the models' kernels, with their analytic derivatives, for
+    root finders that need both (e.g. the total concentration for a measured activity).
+    """
+    s = np.sqrt(ionic)
+    if model == "limiting":
+        return -a * s, -a / (2.0 * s)
+    if model == "guntelberg":
+        return -a * s / (1.0 + s), -a / (2.0 * s * (1.0 + s) ** 2)
+    if model == "davies":
+        return (_lg_davies(1.0, s, ionic, a, coefficient),
+                -a * (1.0 / (2.0 * s * (1.0 + s) ** 2) - coefficient))
+    if model == "bates-guggenheim":
+        b = BATES_GUGGENHEIM_BA
+        return -a * s / (1.0 + b * s), -a / (2.0 * s * (1.0 + b * s) ** 2)
+    raise InputError(f"model {model!r} has no single-charge form; allowed: limiting, guntelberg, davies, "
+                     "bates-guggenheim")
+
+
 def _array(x, what: str, model: str) -> np.ndarray:
     """A float array of a numeric argument; InputError naming it otherwise (NaN passes through)."""
     if isinstance(x, str) or (isinstance(x, np.ndarray) and x.dtype.kind in "USO"):
