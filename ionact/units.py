@@ -29,7 +29,7 @@ from typing import Any
 import numpy as np
 
 from .errors import InputError, UnitAssumptionWarning, UnitError, caller_stacklevel
-from .species import Ion
+from .species import Ion, formula_atoms
 
 __all__ = ["registry", "Amount", "parse_amount", "convert_amount", "format_amount", "parse_scalar",
            "unit_kind", "temperature_celsius", "TRADE_UNITS", "MAX_AMOUNT_LENGTH", "MAX_UNIT_LENGTH"]
@@ -148,18 +148,18 @@ def _reference_factor(ion: Ion, ref: str) -> float:
     import periodictable
 
     try:
-        ref_formula = periodictable.formula(ref)
-        ion_formula = periodictable.formula(ion.formula)
-    except Exception:  # periodictable raises several kinds for text that is not a formula
+        atoms = formula_atoms(ref)
+        ion_atoms = formula_atoms(ion.formula)
+        masses = {el: float(periodictable.elements.symbol(el).mass) for el in atoms}
+    except Exception:  # not a formula, or an unknown element
         raise UnitError(f"unknown reference {ref!r} in 'as {ref}'") from None
-    atoms = ref_formula.atoms
     if len(atoms) == 1:
         ((el, n_ref),) = atoms.items()
-        n_ion = ion_formula.atoms.get(el, 0)
+        n_ion = ion_atoms.get(el, 0)
         if n_ion == 0:
             raise UnitError(f"'as {ref}': {ion.name} contains no {el}")
-        return float(n_ref / (float(el.mass) * n_ref * n_ion))
-    if ref_formula.atoms == ion_formula.atoms:
+        return float(n_ref / (masses[el] * n_ref * n_ion))
+    if atoms == ion_atoms:
         return 1.0 / ion.molar_mass
     raise UnitError(f"'as {ref}' is not a reference for {ion.name}; use an element or CaCO3")
 
@@ -461,8 +461,23 @@ def _finite(v: float, original: object, what: str) -> float:
     return v
 
 
+# Common units of the quantities jobs take besides amounts, as factors to one unit of each
+# dimension: they convert without building the unit registry (which costs a first command
+# about half a second); anything else goes to pint.
+_COMMON_UNITS: tuple[dict[str, float], ...] = (
+    {"S/m": 1.0, "dS/m": 0.1, "mS/m": 1e-3, "uS/m": 1e-6, "S/cm": 100.0, "mS/cm": 0.1, "uS/cm": 1e-4},
+    {"g/L": 1.0, "mg/L": 1e-3, "ug/L": 1e-6, "ng/L": 1e-9, "kg/L": 1e3},
+    {"L": 1.0, "mL": 1e-3, "uL": 1e-6},
+    {"V": 1.0, "mV": 1e-3},
+    {"": 1.0},
+)
+
+
 @lru_cache(maxsize=256)
 def _unit_factor_cached(u: str, unit: str) -> float:
+    for table in _COMMON_UNITS:
+        if u in table and unit in table:
+            return table[u] / table[unit]
     ureg = registry()
     return float(ureg.Quantity(1.0, u).to(unit).magnitude)
 

@@ -275,3 +275,26 @@ def test_method_file_calibration_rules_apply(capsys, tmp_path):
     rc, _, err = run(capsys, "calibrate", _example("fluoride_standards.csv"), "--analyte", "F-", "--method",
                      str(bad))
     assert rc == 2 and "slope_window" in err
+
+
+def test_checking_the_example_batch_needs_no_unit_registry(tmp_path):
+    # the common units of a batch file (mg/L as N, µS/cm) convert without pint's registry, and
+    # molar masses without periodictable's formula parser: a first command stays light
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    import ionact as ia
+    from ionact.method import load_method
+
+    design = tmp_path / "design.json"
+    design.write_text(json.dumps(ia.design_adjuster(**load_method("example:nitrate_irrigation")).to_dict()))
+    batch = Path(ia.__file__).parent / "examples" / "irrigation_batch.csv"
+    code = ("import sys, io; from ionact.cli import main; sys.stdout = io.StringIO(); "
+            f"rc = main(['check', {str(batch)!r}, '--design', {str(design)!r}, '--out', "
+            f"{str(tmp_path / 'r.csv')!r}]); sys.stdout = sys.__stdout__; "
+            "print(rc, 'pint' in sys.modules, 'pyparsing' in sys.modules)")
+    res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=120)
+    rc, pint_loaded, parser_loaded = res.stdout.split()
+    assert rc in {"0", "1"} and (pint_loaded, parser_loaded) == ("False", "False"), res.stderr[-2000:]
+    assert (tmp_path / "r.csv").stat().st_size > 100

@@ -154,3 +154,23 @@ def test_salt_parser_raises_only_ionact_errors(text):
         ia.Salt.parse(text)
     except IonactError:
         pass
+
+
+@pytest.mark.parametrize("formula", ["NaCl", "CuSO4(H2O)5", "(NH4)2SO4", "Ca(NO3)2", "KH2PO4", "Na2B4O7(H2O)10",
+                                     "C8H5KO4", "CH3COOH", "C14H18N2O8", "Al2(SO4)3", "K4Fe(CN)6"])
+def test_formula_mass_equals_periodictable(formula):
+    # our element split with periodictable's atomic weights equals periodictable's own formula
+    # parser (the reference library)
+    import periodictable
+
+    from ionact.species import formula_mass
+
+    assert formula_mass(formula) == pytest.approx(periodictable.formula(formula).mass, rel=1e-14)
+
+
+@pytest.mark.parametrize("bad", ["Xx2", "Ca(NO3", "CaNO3)2", "H0", "Ca[OH]2", "n"])
+def test_formula_mass_refuses_what_is_not_a_formula(bad):
+    from ionact.species import formula_mass
+
+    with pytest.raises(ia.InputError, match="not a chemical formula"):
+        formula_mass(bad)
