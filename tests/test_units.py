@@ -162,3 +162,15 @@ def test_any_string_parses_or_raises_a_named_error_quickly(text):
     else:
         assert np.isfinite(a.value) and a.value >= 0
     assert time.perf_counter() - t0 < 0.05  # bounded (< 10 ms typical; the first pint call builds the registry)
+
+
+def test_common_unit_table_agrees_with_pint():
+    # the units converted without the registry (for a light first command) against pint itself
+    from ionact.units import _COMMON_UNITS, registry
+
+    ureg = registry()
+    for table in _COMMON_UNITS:
+        for a, fa in table.items():
+            for b, fb in table.items():
+                if a and b:
+                    assert fa / fb == pytest.approx(float(ureg.Quantity(1.0, a).to(b).magnitude), rel=1e-12), (a, b)
