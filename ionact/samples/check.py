@@ -415,16 +415,21 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
         in_lin = (t_an >= method.linear_range[0]) & (t_an <= method.linear_range[1])
     good = in_cal & in_env & in_err & in_lin & valid[:, None]
     first = np.where(good.any(axis=1), good.argmax(axis=1), -1)
-    flags = _Flags(analyte, i_val, in_cal, in_env, in_err, in_lin, cal, env_hi, err, method.budget_mv, factor, unit,
-                   dil, free, core.free_std, method.analyte.name)
-    status, reason, chosen = [], [], np.full(len(vals.ids), np.nan)
-    for i in range(len(vals.ids)):
-        s, why, d = flags.word(i, valid[i], vals.reasons[i], int(first[i]), diluted, i_dil)
-        status.append(s)
-        reason.append(why)
-        chosen[i] = d
     rows = np.arange(len(vals.ids))
     idx = np.where(first >= 0, first, 0)
+    arrays = {"in_cal": in_cal, "in_env": in_env, "in_err": in_err, "in_lin": in_lin, "err": err, "free": free}
+    flags = _Flags(analyte.tolist(), i_val.tolist(), _Column.at(np.zeros(len(rows), dtype=int), rows, dil, **arrays),
+                   _Column.at(np.full(len(rows), dil.size - 1), rows, dil, **arrays), dil[idx].tolist(),
+                   diluted[rows, idx].tolist(), i_dil[rows, idx].tolist(), err[rows, idx].tolist(),
+                   free[rows, idx].tolist(), cal, env_hi, method.budget_mv, factor, unit, core.free_std,
+                   method.analyte.name)
+    status, reason, chosen_l = [], [], []
+    for i, (ok, problem, j) in enumerate(zip(valid.tolist(), vals.reasons, first.tolist(), strict=True)):
+        s, why, d = flags.word(i, ok, problem, j)
+        status.append(s)
+        reason.append(why)
+        chosen_l.append(d)
+    chosen = np.array(chosen_l, dtype=float)
     slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     e = np.where(valid, err[rows, idx], np.nan)
     return SampleCheck(
@@ -441,64 +446,82 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
 
 
 @dataclass(frozen=True)
+class _Column:
+    """One dilution's flags and numbers for every row, as Python lists (list items format
+    several times faster than numpy scalars, and the reasons are words built row by row)."""
+
+    d: float
+    in_cal: list[bool]
+    in_env: list[bool]
+    in_err: list[bool]
+    in_lin: list[bool]
+    err: list[float]
+    free: list[float]  # the analyte's free share of its total
+
+    @classmethod
+    def at(cls, j: np.ndarray, rows: np.ndarray, dil: np.ndarray, **arrays: np.ndarray) -> _Column:
+        """The column ``j`` of each row (one index per row), gathered from (rows × dilutions) arrays."""
+        return cls(d=float(dil[j[0]]) if j.size else 1.0,
+                   **{k: v[rows, j].tolist() for k, v in arrays.items()})
+
+
+@dataclass(frozen=True)
 class _Flags:
-    analyte: np.ndarray
-    i_val: np.ndarray
-    in_cal: np.ndarray
-    in_env: np.ndarray
-    in_err: np.ndarray
-    in_lin: np.ndarray
+    analyte: list[float]
+    i_val: list[float]
+    undiluted: _Column
+    strongest: _Column  # the largest allowed dilution
+    chosen_dil: list[float]  # at each row's first dilution that works (any value where none does)
+    chosen_analyte: list[float]
+    chosen_ionic: list[float]
+    chosen_err: list[float]
+    chosen_free: list[float]
     cal: tuple[float, float]
     env_hi: float
-    err: np.ndarray
     budget: float
     fu: float
     unit: str
-    dil: np.ndarray
-    free: np.ndarray  # the analyte's free share of its total, sample × dilution
-    free_std: float  # the same in the standards
+    free_std: float  # the analyte's free share in the standards
     analyte_name: str
 
-    def bound(self, i: int, j: int) -> str:
+    def bound(self, f: float) -> str:
         """Words for a sample whose own ions bind the analyte more than the standards' do."""
-        f = float(self.free[i, j])
         if not f < BOUND_SHARE * self.free_std:
             return ""
         return (f" (free {self.analyte_name} {f:.1%} of its total against {self.free_std:.1%} in the standards: "
                 "the sample's ions bind it)")
 
-    def word(self, i: int, valid: bool, problem: str | None, j: int, diluted: np.ndarray, i_dil: np.ndarray
-             ) -> tuple[str, str, float]:
+    def word(self, i: int, valid: bool, problem: str | None, j: int) -> tuple[str, str, float]:
         if not valid:
             return INVALID, problem or "invalid input", math.nan
         fu, cal = self.fu, self.cal
         if j == 0:
             return INSIDE, (f"undiluted: analyte {self.analyte[i] / fu:.4g} {self.unit} within {cal[0] / fu:.4g}–"
                             f"{cal[1] / fu:.4g}, I {self.i_val[i]:.4g} ≤ {self.env_hi:.4g} mol/kg, γ error "
-                            f"{self.err[i, 0]:.3g} mV ≤ {self.budget:.3g}"), float(self.dil[0])
+                            f"{self.undiluted.err[i]:.3g} mV ≤ {self.budget:.3g}"), self.undiluted.d
         if j > 0:
-            return DILUTE, (f"{self.why_not(i, 0)}; dilute ×{self.dil[j]:g}: analyte {diluted[i, j] / fu:.4g} "
-                            f"{self.unit}, I {i_dil[i, j]:.4g} mol/kg, γ error {self.err[i, j]:.3g} mV"
-                            f"{self.bound(i, j)}"), \
-                float(self.dil[j])
+            return DILUTE, (f"{self.why_not(i, self.undiluted)}; dilute ×{self.chosen_dil[i]:g}: analyte "
+                            f"{self.chosen_analyte[i] / fu:.4g} {self.unit}, I {self.chosen_ionic[i]:.4g} mol/kg, "
+                            f"γ error {self.chosen_err[i]:.3g} mV{self.bound(self.chosen_free[i])}"), \
+                self.chosen_dil[i]
         if self.analyte[i] < cal[0]:
             return CANNOT, (f"analyte {self.analyte[i] / fu:.4g} {self.unit} is below the calibrated low end "
                             f"{cal[0] / fu:.4g} even undiluted; use a lower calibration or another method"), math.nan
-        return CANNOT, "no allowed dilution works; " + self.why_not(i, self.dil.size - 1), math.nan
+        return CANNOT, "no allowed dilution works; " + self.why_not(i, self.strongest), math.nan
 
-    def why_not(self, i: int, j: int) -> str:
+    def why_not(self, i: int, c: _Column) -> str:
         parts = []
-        d = self.dil[j]
+        d = c.d
         a = self.analyte[i] / d
-        if not self.in_cal[i, j]:
+        if not c.in_cal[i]:
             side = "above" if a > self.cal[1] else "below"
             parts.append(f"analyte {a / self.fu:.4g} {self.unit} {side} the calibrated "
                          f"{self.cal[0] / self.fu:.4g}–{self.cal[1] / self.fu:.4g}")
-        if not self.in_env[i, j]:
+        if not c.in_env[i]:
             parts.append(f"I {self.i_val[i] / d:.4g} mol/kg above the design's {self.env_hi:.4g}")
-        if not self.in_err[i, j]:
-            parts.append(f"γ error {self.err[i, j]:.3g} mV above the budget {self.budget:.3g}{self.bound(i, j)}")
-        if not self.in_lin[i, j]:
+        if not c.in_err[i]:
+            parts.append(f"γ error {c.err[i]:.3g} mV above the budget {self.budget:.3g}{self.bound(c.free[i])}")
+        if not c.in_lin[i]:
             parts.append("treated analyte outside the electrode's linear range")
         prefix = "undiluted" if d == 1 else f"at ×{d:g}"
         return f"{prefix}: " + ", ".join(parts)

@@ -53,7 +53,7 @@ def printable(s: str) -> str:
 
 def _num_column(values: np.ndarray) -> list[str]:
     """Shortest round-trip text of each float (Python's repr); empty for NaN."""
-    return ["" if x != x else x_repr for x, x_repr in zip(values.tolist(), map(repr, values.tolist()), strict=True)]
+    return ["" if x != x else repr(x) for x in values.tolist()]
 
 
 _FORMULA = frozenset("=+-@\t\r")
