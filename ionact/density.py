@@ -131,8 +131,8 @@ def water_per_litre(
     """
     n = len(ions)
     shape = np.broadcast_shapes(*(np.shape(a)[1:] for a in (molal, molar) if a is not None), np.shape(temperature))
-    m = np.zeros((n, *shape)) if molal is None else np.broadcast_to(np.asarray(molal, dtype=float), (n, *shape))
-    c = np.zeros((n, *shape)) if molar is None else np.broadcast_to(np.asarray(molar, dtype=float), (n, *shape))
+    m = None if molal is None else np.broadcast_to(np.asarray(molal, dtype=float), (n, *shape))
+    c = None if molar is None else np.broadcast_to(np.asarray(molar, dtype=float), (n, *shape))
     rho_w = np.broadcast_to(water.density(temperature) / 1000.0, shape)
     spec = check_density(density)
     masses = np.array([ion.molar_mass for ion in ions])
@@ -140,15 +140,29 @@ def water_per_litre(
         w = np.array(rho_w, dtype=float)
     elif spec is not None:
         # rho = w (1 + Σ m M/1000) + Σ c M/1000
-        solute_molar = np.tensordot(masses, c, axes=(0, 0)) / 1000.0
-        solute_molal = np.tensordot(masses, m, axes=(0, 0)) / 1000.0
-        w = (spec - solute_molar) / (1.0 + solute_molal)
+        solute_molar = 0.0 if c is None else np.tensordot(masses, c, axes=(0, 0)) / 1000.0
+        solute_molal = 0.0 if m is None else np.tensordot(masses, m, axes=(0, 0)) / 1000.0
+        w = np.broadcast_to((spec - solute_molar) / (1.0 + solute_molal), shape)
+    elif m is None and c is not None:
+        w = _model_water_molar(ions, c, rho_w)
     else:
-        w = _model_water(ions, m, c, rho_w)
+        w = _model_water(ions, np.zeros((n, *shape)) if m is None else m,
+                         np.zeros((n, *shape)) if c is None else c, rho_w)
     w = np.asarray(w, dtype=float)
     if np.any(w <= 0):
         raise InputError("the molar amounts exceed what a litre of solution can hold (water per litre ≤ 0)")
     return w
+
+
+def _model_water_molar(ions: Sequence[Ion], c: np.ndarray, rho_w: np.ndarray) -> np.ndarray:
+    """The model's water per litre for molar amounts alone, where it is explicit:
+    w = ρ_w (1 − Σ c_j (V°_j + S_j √I_c) / 1000), I_c the molar ionic strength."""
+    v0, s = _volumes(ions, c)
+    z2 = np.array([ion.charge**2 for ion in ions], dtype=float)
+    vc0 = np.tensordot(v0, c, axes=(0, 0)) / 1000.0
+    sc = np.tensordot(s, c, axes=(0, 0)) / 1000.0
+    sq = np.sqrt(np.maximum(0.5 * np.tensordot(z2, c, axes=(0, 0)), 0.0))
+    return np.asarray(rho_w * (1.0 - vc0 - sq * sc))
 
 
 def _model_water(ions: Sequence[Ion], m: np.ndarray, c: np.ndarray, rho_w: np.ndarray) -> np.ndarray:

@@ -207,9 +207,7 @@ def _valid(system: System, ev: Evaluated) -> np.ndarray:
 
 def _resolve_at(system: System, job: Job, x: float, model: str | None = None) -> ModelChoice:
     amounts, ratio = points(system, job, np.array([x]))
-    ts, tstd = system.treated(amounts, ratio)
-    n = ts.shape[0]
-    batch = system.batch(np.concatenate([ts.reshape(n, -1), tstd.reshape(n, -1)], axis=1))
+    batch = system.batch(system.treated(amounts, ratio)[0])
     return system.resolve(batch, model or job.requested, job.fallback)
 
 

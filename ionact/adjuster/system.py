@@ -210,19 +210,29 @@ class System:
         """Ion molarities of the stock (n_ions, G) for component amounts (n_components, G)."""
         return self.cmat @ amounts
 
-    def treated(self, amounts: np.ndarray, ratio: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """Molar compositions of treated samples (n, G, J, K) and standards (n, G, L).
+    def treated(self, amounts: np.ndarray, ratio: np.ndarray) -> tuple[np.ndarray, tuple[int, int, int, int]]:
+        """Molar compositions of the treated samples and standards side by side, (n, G·J·K + G·L),
+        and the shape (G, J, K, L): samples × analyte levels first, then the standards.
 
-        Volumes are additive: one volume of sample plus ``ratio`` volumes of stock.
+        Volumes are additive: one volume of sample plus ``ratio`` volumes of stock. The array is
+        filled in place (the design search evaluates millions of treated solutions).
         """
         isa = self.stock_ions(amounts)  # (n, G)
+        n, G = isa.shape
+        J, K, L = self.sample_c.shape[1], self.an_levels.size, self.std_levels.size
+        flat = np.empty((n, G * J * K + G * L))
+        ts = flat[:, : G * J * K].reshape(n, G, J, K)
+        tstd = flat[:, G * J * K:].reshape(n, G, L)
         r = ratio[None, :]
-        an = self.stoich[:, None, None] * self.an_levels[None, None, :]  # (n, 1, K)
-        samp = self.sample_c[:, :, None] + an  # (n, J, K)
-        ts = (samp[:, None, :, :] + (r * isa)[:, :, None, None]) / (1.0 + r)[:, :, None, None]
+        part = (r * isa) / (1.0 + r)  # (n, G): the stock's share
+        keep = 1.0 / (1.0 + ratio)  # (G,): the sample's share
+        samp = self.sample_c[:, :, None] + self.stoich[:, None, None] * self.an_levels[None, None, :]  # (n, J, K)
+        np.multiply(samp[:, None, :, :], keep[None, :, None, None], out=ts)
+        ts += part[:, :, None, None]
         std = self.stoich[:, None] * self.std_levels[None, :]  # (n, L)
-        tstd = (std[:, None, :] + (r * isa)[:, :, None]) / (1.0 + r)[:, :, None]
-        return ts, tstd
+        np.multiply(std[:, None, :], keep[None, :, None], out=tstd)
+        tstd += part[:, :, None]
+        return flat, (G, J, K, L)
 
     def batch(self, c_flat: np.ndarray) -> Batch:
         """Step 1 of the path for molar compositions (n, N): molalities (totals)."""
@@ -244,10 +254,7 @@ class System:
         """Evaluate G design points: amounts (n_components, G), ratio (G,)."""
         amounts = np.asarray(amounts, dtype=float).reshape(len(self.components), -1)
         ratio = np.broadcast_to(np.asarray(ratio, dtype=float).reshape(-1), amounts.shape[1:])
-        ts, tstd = self.treated(amounts, ratio)
-        n, G, J, K = ts.shape
-        L = tstd.shape[2]
-        flat = np.concatenate([ts.reshape(n, -1), tstd.reshape(n, -1)], axis=1)
+        flat, (G, J, K, L) = self.treated(amounts, ratio)
         batch = self.batch(flat)
         result = self.step(batch)
         lga = result.log10_gamma[self.k]  # log10 of a(free analyte) / m(total analyte): what the electrode sees
