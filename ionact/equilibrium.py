@@ -577,9 +577,18 @@ _RAISE = 1e-5  # relative rise of every molality for the numerical ∂ln γ/∂I
 
 def _gammas_and_slopes(net: Network, m: np.ndarray, t: np.ndarray, ionic: np.ndarray,
                        choice: ModelChoice) -> tuple[np.ndarray, np.ndarray]:
-    """log10 γ of every species and ∂ln γ/∂I (kg/mol), the latter from every molality raised by
-    :data:`_RAISE` (exact for models of I alone; along the composition for the others)."""
+    """log10 γ of every species and ∂ln γ/∂I (kg/mol): analytic for models of the charge alone,
+    else from every molality raised by :data:`_RAISE` (exact for models of I alone; along the
+    composition for the others)."""
     lg = _gammas(net, m, t, choice)
+    if choice.info.charge_only:  # analytic: ln10·z²·f′(I) for ions, ln10·k = ln10·lg/I for neutral species
+        from .models.debye_huckel import unit_log_gamma
+        from .water import dh_a_array
+
+        i_s = np.maximum(ionic, 1e-300)
+        _, df = unit_log_gamma(choice.name, i_s, dh_a_array(t), choice.options.davies_coefficient)
+        z2 = net.z2[:, None]
+        return lg, np.where(z2 > 0, (LN10 * z2) * df, lg * LN10 / i_s)
     up = _gammas(net, m * (1.0 + _RAISE), t, choice)
     return lg, (up - lg) * LN10 / (_RAISE * np.maximum(ionic, 1e-300))
 
