@@ -163,7 +163,7 @@ class BatchSummary:
     total: int = 0
     _points: list[tuple[np.ndarray, np.ndarray, np.ndarray, float]] = field(default_factory=list, repr=False)
 
-    def add(self, r: SampleCheck, keep_rows: bool, limit: int) -> None:
+    def add(self, r: SampleCheck, keep_rows: bool, limit: int, points: bool = True) -> None:
         for k, v in r.counts().items():
             self.counts[k] += v
         self.model, self.unit = r.model, r.unit
@@ -173,8 +173,9 @@ class BatchSummary:
             self.head += lines if not self.head else lines[1:]
         if keep_rows:
             self.rows_json += r.to_dict()["rows"]
-        status = np.array([STATUSES.index(s) for s in r.status], dtype=np.int8)
-        self._points.append((np.asarray(r.ionic_strength), np.asarray(r.analyte), status, r.unit_factor))
+        if points:  # the figure's points, only when a figure is asked for
+            status = np.array([STATUSES.index(s) for s in r.status], dtype=np.int8)
+            self._points.append((np.asarray(r.ionic_strength), np.asarray(r.analyte), status, r.unit_factor))
         self.total += len(r)
 
     def text(self, limit: int = 50) -> str:
@@ -186,7 +187,8 @@ class BatchSummary:
         return out
 
     def figure(self) -> Any:
-        """The batch figure from the kept points (the same as :meth:`SampleCheck.plot`)."""
+        """The batch figure from the kept points (the same as :meth:`SampleCheck.plot`); a
+        streamed check keeps them only when it was asked for a figure (``plot=``)."""
         n = self.total
         i = np.concatenate([p[0] for p in self._points]) if self._points else np.zeros(0)
         a = np.concatenate([p[1] for p in self._points]) if self._points else np.zeros(0)
@@ -246,7 +248,7 @@ def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, cali
                     if offset == 0:
                         w.writerow(header)
                     w.writerows(rows)
-                summary.add(r, keep_rows, limit)
+                summary.add(r, keep_rows, limit, points=plot is not None)
                 offset += len(r)
                 bar.advance(len(r))
         if plot is not None:
