@@ -626,15 +626,17 @@ def _newton_step(net: Network, m: np.ndarray, tot: np.ndarray, totals: np.ndarra
         diag = (nu[:, alone] ** 2).T @ m + fixed[alone] + 1e-300
         sol[alone] = rhs[alone] / diag[:, None, :]
     if coupled.size:
-        kc = coupled.size
-        a = (_pairs(net, unknown, coupled).T @ m).reshape(kc, kc, -1)  # (k, k, N): samples last, contiguous
-        dg = np.einsum("jjn->jn", a)
-        dg += fixed[coupled] + 1e-300
-        d = 1.0 / np.sqrt(dg)
-        a *= d[:, None, :]
-        a *= d[None, :, :]
-        a[np.arange(kc), np.arange(kc)] += 1e-13  # never singular
-        sol[coupled] = _solve_stack(a, rhs[coupled] * d[:, None, :]) * d[:, None, :]
+        a, d = _scaled_jacobian(net, unknown, coupled, m, fixed[coupled])
+        b = rhs[coupled] * d[:, None, :]
+        xs, bad = _solve_stack(a, b)
+        if bad.size:  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
+            a_bad, _ = _scaled_jacobian(net, unknown, coupled, m[:, bad], fixed[coupled][:, bad])
+            fin = np.all(np.isfinite(a_bad), axis=(0, 1)) & np.all(np.isfinite(b[:, :, bad]), axis=(0, 1))
+            if np.any(fin):  # a non-finite system keeps no step (zeros below)
+                xs[:, :, bad[fin]] = np.einsum("nij,jrn->irn", np.linalg.pinv(a_bad[:, :, fin].transpose(2, 0, 1)),
+                                               b[:, :, bad[fin]])
+        sol[coupled] = np.nan_to_num(xs, nan=0.0, posinf=0.0, neginf=0.0) * d[:, None, :] if bad.size else \
+            xs * d[:, None, :]
     y, w = sol[:, 0], sol[:, 1]
     den = 1.0 + np.einsum("kn,kn->n", q, w)
     ok = np.abs(den) > 1e-8  # else the step at fixed γ
@@ -652,18 +654,33 @@ def _gamma_shift(net: Network, slope: np.ndarray, unknown: np.ndarray) -> np.nda
     return np.asarray(net.nu[:, unknown] @ slope[: len(net.components)][unknown] - slope)
 
 
-def _solve_stack(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+def _scaled_jacobian(net: Network, unknown: np.ndarray, coupled: np.ndarray, m: np.ndarray, fixed: np.ndarray
+                     ) -> tuple[np.ndarray, np.ndarray]:
+    """The fixed-γ Jacobian of the coupled unknown components, (k, k, N) with the samples last,
+    scaled to a unit diagonal, and the scale d (k, N): the matrix is D A D (+1e-13 on the
+    diagonal so that none is singular); an absent component (``fixed`` 1) gets a unit diagonal."""
+    kc = coupled.size
+    a = (_pairs(net, unknown, coupled).T @ m).reshape(kc, kc, -1)
+    dg = np.einsum("jjn->jn", a)
+    dg += fixed + 1e-300
+    d = 1.0 / np.sqrt(dg)
+    a *= d[:, None, :]
+    a *= d[None, :, :]
+    a[np.arange(kc), np.arange(kc)] += 1e-13
+    return a, d
+
+
+def _solve_stack(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """Solve a stack of small symmetric systems, a (k, k, N) and b (k, R, N), samples last.
 
     Gaussian elimination vectorised over the stack, faster than a LAPACK call per matrix
     for k ≲ 10; ``a`` is overwritten. The matrices are diagonally scaled symmetric positive
     (semi-)definite Jacobians with a unit diagonal, so no pivoting is needed and only the
-    trailing block is updated (the eliminated column is not needed again). Samples whose
-    elimination breaks down (a non-finite result) are solved again by the pseudo-inverse,
-    which also gives singular ones a step.
+    trailing block is updated (the eliminated column is not needed again). Returns the
+    solutions and the samples whose elimination broke down (a non-finite result), for the
+    caller to solve otherwise.
     """
     k = b.shape[0]
-    orig = a.copy()
     y = np.array(b)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         for c in range(k - 1):
@@ -673,11 +690,8 @@ def _solve_stack(a: np.ndarray, b: np.ndarray) -> np.ndarray:
         x = np.empty_like(y)
         for c in range(k - 1, -1, -1):
             x[c] = (y[c] - np.einsum("jn,jrn->rn", a[c, c + 1:], x[c + 1:])) / a[c, c]
-    bad = np.flatnonzero(~np.all(np.isfinite(x), axis=(0, 1)))
-    if bad.size:  # rare: samples whose unpivoted elimination failed get the pseudo-inverse
-        bad = bad[np.all(np.isfinite(orig[:, :, bad]), axis=(0, 1)) & np.all(np.isfinite(b[:, :, bad]), axis=(0, 1))]
-        x[:, :, bad] = np.einsum("nij,jrn->irn", np.linalg.pinv(orig[:, :, bad].transpose(2, 0, 1)), b[:, :, bad])
-    return np.nan_to_num(x, nan=0.0, posinf=0.0, neginf=0.0)
+    bad = np.flatnonzero(~np.isfinite(x.sum(axis=(0, 1))))
+    return x, bad
 
 
 def _split(net: Network, unknown: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -313,3 +313,23 @@ def test_constants_without_enthalpy_warn_beyond_the_window():
         ia.speciate(sol.with_temperature(50.0), pH=5.5, model="davies")
     with ia.strict(), pytest.raises(ia.ValidityRangeError, match="enthalpy"):
         ia.speciate(sol.with_temperature(50.0), pH=5.5, model="davies")
+
+
+def test_stack_solver_against_numpy_and_its_breakdowns():
+    # the vectorised elimination equals numpy's solver on random symmetric positive definite
+    # stacks, and names the samples whose elimination breaks down (a singular matrix) instead
+    # of returning them silently
+    from ionact.equilibrium import _solve_stack
+
+    rng = np.random.default_rng(7)
+    k, n = 6, 50
+    g = rng.normal(size=(n, k, k))
+    spd = g @ g.transpose(0, 2, 1) + k * np.eye(k)
+    b = rng.normal(size=(k, 2, n))
+    a = np.ascontiguousarray(spd.transpose(1, 2, 0))
+    a[:, :, 3] = 1.0  # sample 3: a singular all-ones matrix
+    x, bad = _solve_stack(a.copy(), b)
+    assert bad.tolist() == [3]
+    good = [i for i in range(n) if i != 3]
+    expect = np.linalg.solve(spd[good], b[:, :, good].transpose(2, 0, 1))  # (n, k, 2)
+    np.testing.assert_allclose(x[:, :, good].transpose(2, 0, 1), expect, rtol=1e-10, atol=1e-12)
