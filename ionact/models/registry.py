@@ -199,9 +199,14 @@ def _neutral_lg(b: Batch, o: Options, lg: np.ndarray, notes: list[str]) -> np.nd
     neutral = b.z == 0
     if np.any(neutral):
         given = dict(o.setschenow)
-        ks = np.array([given.get(n, o.setschenow_default) for n in b.names])
-        lg = np.where(neutral[:, None], ks[:, None] * b.ionic[None, :], lg)
-        used = [n for n, is_n in zip(b.names, neutral, strict=True) if is_n]
+        idx = np.flatnonzero(neutral)
+        ks = np.array([given.get(b.names[i], o.setschenow_default) for i in idx])
+        if not (isinstance(lg, np.ndarray) and lg.dtype == float and lg.flags.owndata and lg.flags.writeable
+                and lg.shape == b.m.shape):
+            lg = np.array(np.broadcast_to(lg, b.m.shape), dtype=float)
+        # the kernel's own fresh array: the neutral rows are replaced in place (no pass over the others)
+        lg[idx] = ks[:, None] * b.ionic[None, :]
+        used = [b.names[i] for i in idx]
         notes.append(
             "neutral species " + ", ".join(used) + " use Setschenow log10 γ = k·I "
             f"(k = {o.setschenow_default} kg/mol unless given; common practice)"
