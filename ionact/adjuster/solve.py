@@ -28,6 +28,7 @@ __all__ = ["BufferPlan", "Job", "SearchResult", "points", "solve_buffer", "solub
            "GRID_POINTS", "SEARCH_FLOOR"]
 
 GRID_POINTS = 49
+SCAN_COLUMNS = 200_000  # treated solutions per evaluation in the grid scan (arrays of ~10 MB per ion set)
 SEARCH_FLOOR = 1e-5  # smallest stock scale or ratio searched
 SEARCH_CEILING = 1e3  # largest stock scale searched when no solubility bounds it
 _MODEL_MOVES = 3
@@ -262,20 +263,20 @@ def _root(system: System, job: Job, notes: list[str]) -> tuple[float, dict, Mode
 
     lo, hi = _bounds(job)
     grid = np.geomspace(lo, hi, GRID_POINTS)
-    ev = system.evaluate(*points(system, job, grid))
-    wg = ev.worst * job.slope
-    valid = _valid(system, ev)
+    worst, valid, ionic_max = _scan(system, job, grid)
+    wg = worst * job.slope
     scan: dict[str, Any] = {"x": grid, "worst_mv": wg, "valid": valid}
     ok = np.flatnonzero((wg <= job.budget_mv) & valid)
     what = "stock scale" if job.solve == "stock" else "volume ratio"
     if ok.size == 0 and not np.all(valid) and job.requested != "auto":
+        ev = system.evaluate(*points(system, job, grid))  # the whole grid at once: a model for all of it
         wider = system.resolve(ev.batch, "auto", None)
         if wider.name != system.choice.name and wider.info.max_ionic_strength > system.choice.info.max_ionic_strength:
             notes.append(f"model {system.choice.name} cannot cover a design that meets the budget: moved to "
                          f"{wider.name}")
             return 1.0, scan, wider
     if ok.size == 0:
-        raise InfeasibleDesignError(_why_infeasible(system, job, grid, wg, valid, ev, what))
+        raise InfeasibleDesignError(_why_infeasible(system, job, grid, wg, valid, ionic_max, what))
     i = int(ok[0])
     if i == 0:
         notes.append("the budget is met even at the smallest adjuster searched: samples and standards already "
@@ -295,12 +296,28 @@ def _root(system: System, job: Job, notes: list[str]) -> tuple[float, dict, Mode
     return x, scan, None
 
 
+def _scan(system: System, job: Job, grid: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Worst log10 γ ratio, model validity and the largest ionic strength at each grid point,
+    evaluated a few grid points at a time so that no array holds more than about
+    :data:`SCAN_COLUMNS` treated solutions (memory, and the time to touch it, stay bounded
+    whatever the number of sample matrices)."""
+    per_point = system.sample_c.shape[1] * system.an_levels.size + system.std_levels.size
+    step = max(1, SCAN_COLUMNS // max(per_point, 1))
+    worst, valid, ionic_max = [], [], []
+    for start in range(0, grid.size, step):
+        ev = system.evaluate(*points(system, job, grid[start:start + step]))
+        worst.append(ev.worst)
+        valid.append(_valid(system, ev))
+        ionic_max.append(ev.ionic_max)
+    return np.concatenate(worst), np.concatenate(valid), np.concatenate(ionic_max)
+
+
 def _why_infeasible(system: System, job: Job, grid: np.ndarray, wg: np.ndarray, valid: np.ndarray,
-                    ev: Evaluated, what: str) -> str:
+                    ionic_max: np.ndarray, what: str) -> str:
     info = system.choice.info
     head = f"no design meets the budget of {job.budget_mv:.4g} mV: "
     if not np.any(valid):
-        return (head + f"even the smallest {what} searched gives an ionic strength {float(ev.ionic_max.min()):.4g} "
+        return (head + f"even the smallest {what} searched gives an ionic strength {float(ionic_max.min()):.4g} "
                 f"mol/kg beyond model {info.name}'s range")
     wv = np.where(valid, wg, np.inf)
     k = int(np.argmin(wv))
