@@ -218,3 +218,22 @@ def test_design_figure_for_evaluated_design(design, tmp_path):
     assert len(design.scan["x"]) > 10 and design.scan["chosen"] == pytest.approx(2.0)
     design.plot(tmp_path / "d.png")
     assert (tmp_path / "d.png").stat().st_size > 1000
+
+
+def test_report_text_is_what_the_csv_module_writes(design):
+    # the report is built column by column for speed; it must equal csv.writer's output for
+    # awkward sample ids (delimiters, quotes, line breaks, formula-leading characters)
+    import csv
+
+    from ionact.samples.output import _csv_text, _num_column, _text_column
+
+    ids = ["plain", "a,b", 'say "hi"', "two\nlines", "=cmd", "+1", "", "tab\there", "cr\rhere"]
+    r = check_samples({"sample_id": ids, "analyte": [1e-4] * len(ids), "ionic_strength": [0.01] * len(ids)}, design)
+    cols = r.columns()
+    cells = [_num_column(np.asarray(v, dtype=float)) if isinstance(v, np.ndarray) else _text_column(v)
+             for _, v in cols]
+    buf = io.StringIO()
+    w = csv.writer(buf)
+    w.writerow([h for h, _ in cols])
+    w.writerows(zip(*cells, strict=True))
+    assert _csv_text(r, header=True) == buf.getvalue()

@@ -12,6 +12,7 @@ import csv
 import io
 import math
 import os
+import re
 import tempfile
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -63,10 +64,25 @@ def _text_column(values: Any) -> list[str]:
     return ["'" + s if s and s[0] in _FORMULA else s for s in ("" if v is None else str(v) for v in values)]
 
 
-def _rows_text(result: SampleCheck) -> tuple[list[str], Iterator[tuple[str, ...]]]:
-    columns = [(h, _num_column(np.asarray(v, dtype=float)) if isinstance(v, np.ndarray) else _text_column(v))
-               for h, v in result.columns()]
-    return [h for h, _ in columns], zip(*(v for _, v in columns), strict=True)
+_NEEDS_QUOTES = re.compile(r'[,"\r\n]')
+
+
+def _quoted(cells: list[str]) -> list[str]:
+    """Cells as the csv module writes them by default (minimal quoting, doubled quotes)."""
+    return ['"' + c.replace('"', '""') + '"' if _NEEDS_QUOTES.search(c) else c for c in cells]
+
+
+def _csv_text(result: SampleCheck, header: bool) -> str:
+    """The report's rows (and header) as CSV text, byte for byte what ``csv.writer`` writes,
+    built column by column: only text columns can need quotes, numbers never do."""
+    heads, cols = [], []
+    for h, v in result.columns():
+        heads.append(h)
+        cols.append(_num_column(np.asarray(v, dtype=float)) if isinstance(v, np.ndarray)
+                    else _quoted(_text_column(v)))
+    lines = [",".join(_quoted(heads))] if header else []
+    lines += [",".join(row) for row in zip(*cols, strict=True)]
+    return "\r\n".join(lines) + "\r\n" if lines else ""
 
 
 @contextmanager
@@ -101,16 +117,12 @@ def write_report_csv(result: SampleCheck, path_or_file: Any) -> None:
     same floats; text that a spreadsheet would take for a formula is neutralised. A path
     is written through a temporary file and renamed when complete.
     """
-    header, rows = _rows_text(result)
+    text = _csv_text(result, header=True)
     if isinstance(path_or_file, str | bytes) or hasattr(path_or_file, "__fspath__"):
         with atomic_output(path_or_file) as fh:
-            w = csv.writer(fh)
-            w.writerow(header)
-            w.writerows(rows)
+            fh.write(text)
         return
-    w = csv.writer(path_or_file)
-    w.writerow(header)
-    w.writerows(rows)
+    path_or_file.write(text)
 
 
 def read_report_csv(path: Any) -> list[dict[str, Any]]:
@@ -243,11 +255,7 @@ def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, cali
                                   analyte_unit=analyte_unit, units=units, rule=rule, background=background,
                                   charge_tolerance_percent=charge_tolerance_percent)
                 if fh is not None:
-                    header, rows = _rows_text(r)
-                    w = csv.writer(fh)
-                    if offset == 0:
-                        w.writerow(header)
-                    w.writerows(rows)
+                    fh.write(_csv_text(r, header=offset == 0))
                 summary.add(r, keep_rows, limit, points=plot is not None)
                 offset += len(r)
                 bar.advance(len(r))
