@@ -17,6 +17,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -484,6 +485,13 @@ class _Flags:
     free_std: float  # the analyte's free share in the standards
     analyte_name: str
 
+    @cached_property
+    def inside_words(self) -> tuple[str, str, str]:
+        """The constant parts of an "inside" reason, formatted once per batch."""
+        fu, cal = self.fu, self.cal
+        return (f" {self.unit} within {cal[0] / fu:.4g}–{cal[1] / fu:.4g}, I ",
+                f" ≤ {self.env_hi:.4g} mol/kg, γ error ", f" mV ≤ {self.budget:.3g}")
+
     def bound(self, f: float) -> str:
         """Words for a sample whose own ions bind the analyte more than the standards' do."""
         if not f < BOUND_SHARE * self.free_std:
@@ -496,9 +504,9 @@ class _Flags:
             return INVALID, problem or "invalid input", math.nan
         fu, cal = self.fu, self.cal
         if j == 0:
-            return INSIDE, (f"undiluted: analyte {self.analyte[i] / fu:.4g} {self.unit} within {cal[0] / fu:.4g}–"
-                            f"{cal[1] / fu:.4g}, I {self.i_val[i]:.4g} ≤ {self.env_hi:.4g} mol/kg, γ error "
-                            f"{self.undiluted.err[i]:.3g} mV ≤ {self.budget:.3g}"), self.undiluted.d
+            p1, p2, p3 = self.inside_words
+            return INSIDE, (f"undiluted: analyte {self.analyte[i] / fu:.4g}{p1}{self.i_val[i]:.4g}{p2}"
+                            f"{self.undiluted.err[i]:.3g}{p3}"), self.undiluted.d
         if j > 0:
             return DILUTE, (f"{self.why_not(i, self.undiluted)}; dilute ×{self.chosen_dil[i]:g}: analyte "
                             f"{self.chosen_analyte[i] / fu:.4g} {self.unit}, I {self.chosen_ionic[i]:.4g} mol/kg, "
