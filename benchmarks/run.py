@@ -152,8 +152,10 @@ def bench_activity(n=100_000) -> None:
     z2 = z * z
     ln_a = -a * math.log(10)
 
-    def floor():  # I, then one exp per distinct |z| and a broadcast (the charges repeat)
-        ionic = 0.5 * z2 @ m
+    ionic_given = np.asarray(sol.ionic_strength)  # a Solution carries its I: the floor may use it too
+
+    def floor():  # one exp per distinct |z| and a broadcast (the charges repeat)
+        ionic = ionic_given
         s = np.sqrt(ionic)
         f = s / (1 + s)
         f -= 0.3 * ionic

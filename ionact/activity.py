@@ -44,7 +44,10 @@ def batch_of(sol: Solution) -> Batch:
     size = sol.size
     m = np.asarray(sol.molality_array).reshape(n, size)
     t = np.asarray(sol.temperature, dtype=float).reshape(size)
-    return Batch.of(tuple(sol.ion(x) for x in sol.ions), m, t)
+    ions = tuple(sol.ion(x) for x in sol.ions)
+    z = np.array([i.charge for i in ions], dtype=float)
+    ionic = np.asarray(sol.ionic_strength, dtype=float).reshape(size)  # the solution's own, computed once
+    return Batch(tuple(i.name for i in ions), ions, z, m, t, ionic)
 
 
 class ActivityCoefficients(Mapping):

@@ -249,8 +249,8 @@ def _once_per_temperature(fn, t: np.ndarray) -> np.ndarray:
     t = np.asarray(t, dtype=float)
     if t.size > 1:
         first = t.flat[0]
-        if np.all(t == first):
-            return np.full(t.shape, float(fn(np.asarray(first))))
+        if np.all(t == first):  # one value, broadcast (read-only) over the batch: no array to fill
+            return np.broadcast_to(float(fn(np.asarray(first))), t.shape)
     return np.asarray(fn(t), dtype=float)
 
 
