@@ -272,10 +272,11 @@ class _Pairs:
     def __init__(self, p: PitzerSet, mc: np.ndarray, ma: np.ndarray, t: np.ndarray, sq: np.ndarray,
                  i_s: np.ndarray, phi: bool = False) -> None:
         dt = t - 25.0
-        self.bc = np.zeros_like(mc)  # Σ_a m_a B_ca
-        self.ba = np.zeros_like(ma)  # Σ_c m_c B_ca
-        self.bp = np.zeros(mc.shape[1])  # Σ_ca m_c m_a B'_ca
-        self.bphi = np.zeros(mc.shape[1])  # Σ_ca m_c m_a Bφ_ca
+        n = mc.shape[1]
+        bc_sum: np.ndarray | None = None  # Σ_a m_a B_ca, built from the first term (no array of zeros)
+        ba_sum: np.ndarray | None = None  # Σ_c m_c B_ca
+        self.bp = np.zeros(n)  # Σ_ca m_c m_a B'_ca
+        self.bphi = np.zeros(n)  # Σ_ca m_c m_a Bφ_ca
         varies = bool(np.any(dt != 0))
         for base, der, alpha in ((p.beta0, p.dbeta0, None), (p.beta1, p.dbeta1, p.alpha1), (p.beta2, None, p.alpha2)):
             for mat, dmat, a in _by_alpha(base, der if varies else None, alpha):
@@ -285,12 +286,17 @@ class _Pairs:
                     g, gp, ex = _g(a * sq)
                 bc, ba, pair = _sums(mat, dmat, dt, mc, ma, need_pair=phi or gp is not None)
                 if not phi:
-                    self.bc += bc if g is None else g * bc
-                    self.ba += ba if g is None else g * ba
+                    if g is not None:  # bc and ba are this call's own arrays
+                        bc *= g
+                        ba *= g
+                    bc_sum = bc if bc_sum is None else np.add(bc_sum, bc, out=bc_sum)
+                    ba_sum = ba if ba_sum is None else np.add(ba_sum, ba, out=ba_sum)
                 else:
                     self.bphi += pair if ex is None else ex * pair
                 if gp is not None:
                     self.bp += gp / i_s * pair
+        self.bc = np.zeros_like(mc) if bc_sum is None else bc_sum
+        self.ba = np.zeros_like(ma) if ba_sum is None else ba_sum
         scale = 1.0 / (2.0 * np.sqrt(p.zc[:, None] * p.za[None, :]))
         dc = p.dcphi if varies and np.any(np.isfinite(p.dcphi)) else None
         self.cc, self.ca, self.cs = _sums(p.cphi * scale, None if dc is None else np.where(np.isfinite(dc), dc, 0.0)

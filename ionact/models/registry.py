@@ -416,9 +416,15 @@ def _v_pitzer(b: Batch, o: Options, imax: float) -> list[Violation]:
     past_t = (t_lo < p.t_range[..., 0]) | (t_hi > p.t_range[..., 1])
     out: list[Violation] = []
     if np.any(past_i | past_t):
-        y, x = pz.equivalent_fractions(p, b.m[ci], b.m[ai])
+        mc, ma = b.m[ci], b.m[ai]
+        with np.errstate(divide="ignore", invalid="ignore"):  # 1/(Σ z m)² of each side; a side with none: 0
+            inv = np.nan_to_num(1.0 / ((p.zc @ mc) * (p.za @ ma)), nan=0.0, posinf=0.0)
+
+        def share(i: int, j: int) -> np.ndarray:  # y_c x_a of one pair, without every pair's fractions
+            return mc[i] * ma[j] * (inv * (p.zc[i] * p.za[j]))
+
         for i, j in zip(*np.nonzero(past_i), strict=True):
-            over = (y[i] * x[j] >= PAIR_SHARE_FOR_LIMITS) & (b.ionic > limit[i, j])
+            over = (share(i, j) >= PAIR_SHARE_FOR_LIMITS) & (b.ionic > limit[i, j])
             if np.any(over):
                 k = int(np.argmax(np.where(over, b.ionic, -np.inf)))
                 out.append(Violation("ionic-strength", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters "
@@ -426,7 +432,7 @@ def _v_pitzer(b: Batch, o: Options, imax: float) -> list[Violation]:
                                      f"mol/kg); here I = {float(b.ionic[k]):.4g} mol/kg"))
         for i, j in zip(*np.nonzero(past_t), strict=True):
             lo, hi = p.t_range[i, j]
-            far = ((b.t < lo) | (b.t > hi)) & (y[i] * x[j] >= PAIR_SHARE_FOR_LIMITS)
+            far = ((b.t < lo) | (b.t > hi)) & (share(i, j) >= PAIR_SHARE_FOR_LIMITS)
             if np.any(far):
                 what = ("linear temperature derivatives" if np.isfinite(p.dbeta0[i, j]) else "25 °C values")
                 out.append(Violation("temperature", f"model pitzer: the {p.cations[i]}–{p.anions[j]} parameters "
