@@ -142,7 +142,7 @@ def water_per_litre(
         # rho = w (1 + Σ m M/1000) + Σ c M/1000
         solute_molar = 0.0 if c is None else np.tensordot(masses, c, axes=(0, 0)) / 1000.0
         solute_molal = 0.0 if m is None else np.tensordot(masses, m, axes=(0, 0)) / 1000.0
-        w = np.broadcast_to((spec - solute_molar) / (1.0 + solute_molal), shape)
+        w = np.array(np.broadcast_to((spec - solute_molar) / (1.0 + solute_molal), shape))
     elif m is None and c is not None:
         w = _model_water_molar(ions, c, rho_w)
     else:

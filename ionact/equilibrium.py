@@ -34,11 +34,12 @@ import numpy as np
 from ._frozen import frozen_map, plain, readonly
 from .constants import LN10, PARAMETER_WINDOW, REFERENCE_TEMPERATURE
 from .errors import ConvergenceError, InputError, UnknownSpeciesError, warn_range
+from .models.debye_huckel import unit_log_gamma
 from .models.registry import Batch, Violation
 from .models.resolver import ModelChoice, choice_for, evaluate, resolve_model
 from .species import Ion, Salt, resolve_ion
 from .tables import complex_table, ksp_table
-from .water import GAS_CONSTANT, ZERO_CELSIUS
+from .water import GAS_CONSTANT, ZERO_CELSIUS, dh_a_array
 
 __all__ = ["Complex", "Network", "Speciation", "speciate", "ph_of", "network_for", "equilibrate", "State",
            "free_fraction_of", "held_ph", "PAIR_KINDS", "MAX_ITERATIONS", "TOLERANCE"]
@@ -582,9 +583,6 @@ def _gammas_and_slopes(net: Network, m: np.ndarray, t: np.ndarray, ionic: np.nda
     composition for the others)."""
     lg = _gammas(net, m, t, choice)
     if choice.info.charge_only:  # analytic: ln10·z²·f′(I) for ions, ln10·k = ln10·lg/I for neutral species
-        from .models.debye_huckel import unit_log_gamma
-        from .water import dh_a_array
-
         i_s = np.maximum(ionic, 1e-300)
         _, df = unit_log_gamma(choice.name, i_s, dh_a_array(t), choice.options.davies_coefficient)
         z2 = net.z2[:, None]

@@ -268,7 +268,8 @@ def dh_a_array(t: np.ndarray) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        A, kg^½ mol^-½, of the shape of ``t``.
+        A, kg^½ mol^-½, of the shape of ``t`` (a read-only broadcast of one value when every
+        temperature is the same).
 
     References
     ----------
@@ -295,7 +296,8 @@ def dh_b_array(t: np.ndarray) -> np.ndarray:
     Returns
     -------
     numpy.ndarray
-        B = κ/√I, Å⁻¹ kg^½ mol^-½, of the shape of ``t``.
+        B = κ/√I, Å⁻¹ kg^½ mol^-½, of the shape of ``t`` (read-only when broadcast, as for
+        :func:`dh_a_array`).
 
     References
     ----------

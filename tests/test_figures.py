@@ -107,12 +107,14 @@ def _data_points(ax: Any) -> np.ndarray:
     return np.asarray(ax.transData.transform(xy))
 
 
+def _legends(fig: Any) -> list[tuple[Any, Any]]:
+    """(axes, legend) of every axes that carries a legend."""
+    return [(ax, ax.get_legend()) for ax in fig.axes if ax.get_legend() is not None]
+
+
 def test_legends_cover_no_data(drawn):
     name, fig, renderer = drawn
-    for ax in fig.axes:
-        legend = ax.get_legend()
-        if legend is None:
-            continue
+    for ax, legend in _legends(fig):
         box = legend.get_window_extent(renderer)
         pts = _data_points(ax)
         inside = (pts[:, 0] > box.x0) & (pts[:, 0] < box.x1) & (pts[:, 1] > box.y0) & (pts[:, 1] < box.y1)
@@ -121,10 +123,7 @@ def test_legends_cover_no_data(drawn):
 
 def test_legend_entries_differ_without_colour(drawn):
     name, fig, _ = drawn
-    for ax in fig.axes:
-        legend = ax.get_legend()
-        if legend is None:
-            continue
+    for _ax, legend in _legends(fig):
         keys = []
         for handle in legend.legend_handles:
             if hasattr(handle, "get_linestyle") and hasattr(handle, "get_marker"):

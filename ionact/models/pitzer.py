@@ -29,7 +29,7 @@ from ..errors import MissingParameterError
 from ..tables import pitzer_binary_table, pitzer_mixing_table
 
 __all__ = ["PitzerSet", "pitzer_set", "log_gamma", "osmotic", "binary_log_mean", "j_function",
-           "equivalent_fractions", "pair_ionic_strength_limits", "PITZER_B", "PITZER_MAX_IONIC_STRENGTH"]
+           "pair_ionic_strength_limits", "PITZER_B", "PITZER_MAX_IONIC_STRENGTH"]
 
 PITZER_B = 1.2
 PITZER_MAX_IONIC_STRENGTH = 6.0  # mol/kg: for mixtures whose pairs state no limit of their own
@@ -206,17 +206,6 @@ def pair_ionic_strength_limits(p: PitzerSet) -> np.ndarray:
     nu_c, nu_a = za / g, zc / g
     w = 0.5 * (nu_c * zc**2 + nu_a * za**2)
     return np.asarray(p.max_molality * w)
-
-
-def equivalent_fractions(p: PitzerSet, mc: np.ndarray, ma: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Equivalent fractions y_c (nc, N) of the cations and x_a (na, N) of the anions; the share
-    of the pair c–a in a sample is y_c·x_a."""
-    ec = p.zc[:, None] * mc
-    ea = p.za[:, None] * ma
-    with np.errstate(invalid="ignore", divide="ignore"):
-        y = np.where(ec.sum(axis=0) > 0, ec / ec.sum(axis=0), 0.0)
-        x = np.where(ea.sum(axis=0) > 0, ea / ea.sum(axis=0), 0.0)
-    return np.asarray(y), np.asarray(x)
 
 
 class _Like:
