@@ -263,3 +263,31 @@ def test_any_damaged_design_field_loads_or_is_named(design, key, value):
         assert str(exc)  # a named error, never another exception
     else:
         assert isinstance(back, ia.AdjusterDesign)
+
+
+@pytest.mark.parametrize("chunk", [1, 2, 3, 7, 1000])
+def test_chunked_read_equals_the_whole_file(tmp_path, chunk):
+    # a units row, blank lines, rows of the wrong width and a quoted cell, across chunk boundaries:
+    # every chunk size gives the same columns, line numbers and row errors as one read
+    from ionact.samples import iter_samples_csv, read_samples_csv
+
+    text = ("sample_id,analyte,conductivity\nunits,mg/L as N,uS/cm\nA,1,100\n\nB,2\n"
+            '"C, quoted",3,300\nD,4,400,extra\n,,\nE,5,500\n')
+    p = _write(tmp_path, text)
+    whole = read_samples_csv(p)
+    parts = list(iter_samples_csv(p, chunk_rows=chunk))
+    assert [len(t) for t in parts[:-1]] == [chunk] * (len(parts) - 1)
+    assert [t.first_row for t in parts] == list(range(0, len(whole), chunk))
+    for h, col in whole.columns.items():
+        assert sum((t.columns[h] for t in parts), []) == col
+    assert sum((t.row_errors for t in parts), []) == whole.row_errors
+    assert sum((t.lines for t in parts), []) == whole.lines == [3, 5, 6, 7, 9]
+    assert whole.units == {"analyte": "mg/L as N", "conductivity": "uS/cm"}
+    assert whole.columns["sample_id"] == ["A", "B", "C, quoted", "D", "E"]
+    assert whole.row_errors[0] is None and "2 cells for 3 columns" in whole.row_errors[1]
+    assert "4 cells for 3 columns" in whole.row_errors[3] and "not re-aligned" in whole.row_errors[3]
+
+
+def test_report_rows_limit(design):
+    r = check_samples({"sample_id": ["a", "b", "c"], "analyte": [1e-4] * 3, "ionic_strength": [0.01] * 3}, design)
+    assert r.rows(2) == r.rows()[:2] and r.rows(0) == [] and r.rows(10) == r.rows()

@@ -14,10 +14,8 @@ when a value is missing or impossible. Every input row comes out, in order.
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
-from functools import cached_property
 from typing import Any
 
 import numpy as np
@@ -420,22 +418,27 @@ def _classify(vals: RowValues, method: Method, dil: np.ndarray, cal: tuple[float
     idx = np.where(first >= 0, first, 0)
     arrays = {"in_cal": in_cal, "in_env": in_env, "in_err": in_err, "in_lin": in_lin, "err": err, "free": free}
     flags = _Flags(analyte.tolist(), i_val.tolist(), _Column.at(np.zeros(len(rows), dtype=int), rows, dil, **arrays),
-                   _Column.at(np.full(len(rows), dil.size - 1), rows, dil, **arrays), dil[idx].tolist(),
-                   diluted[rows, idx].tolist(), i_dil[rows, idx].tolist(), err[rows, idx].tolist(),
-                   free[rows, idx].tolist(), cal, env_hi, method.budget_mv, factor, unit, core.free_std,
-                   method.analyte.name)
-    status, reason, chosen_l = [], [], []
-    for i, (ok, problem, j) in enumerate(zip(valid.tolist(), vals.reasons, first.tolist(), strict=True)):
-        s, why, d = flags.word(i, ok, problem, j)
-        status.append(s)
-        reason.append(why)
-        chosen_l.append(d)
-    chosen = np.array(chosen_l, dtype=float)
+                   _Column.at(np.full(len(rows), dil.size - 1), rows, dil, **arrays), cal, env_hi, method.budget_mv,
+                   factor, unit, core.free_std, method.analyte.name)
+    kind = np.where(~valid, 0, np.where(first == 0, 1, np.where(first > 0, 2, 3)))
+    status = np.array([INVALID, INSIDE, DILUTE, CANNOT], dtype=object)[kind].tolist()
+    reason = np.empty(len(rows), dtype=object)
+    bad = np.flatnonzero(kind == 0)
+    reason[bad] = [vals.reasons[i] or "invalid input" for i in bad.tolist()]
+    inside = np.flatnonzero(kind == 1)
+    reason[inside] = flags.inside(inside.tolist())
+    dilute = np.flatnonzero(kind == 2)
+    at = idx[dilute]
+    reason[dilute] = flags.dilute(dilute.tolist(), dil[at].tolist(), diluted[dilute, at].tolist(),
+                                  i_dil[dilute, at].tolist(), err[dilute, at].tolist(), free[dilute, at].tolist())
+    cannot = np.flatnonzero(kind == 3)
+    reason[cannot] = [flags.cannot(i) for i in cannot.tolist()]
+    chosen = np.where((kind == 1) | (kind == 2), dil[idx], np.nan)
     slope = abs(float(nernst_slope(method.analyte.charge, method.temperature)))
     e = np.where(valid, err[rows, idx], np.nan)
     return SampleCheck(
-        sample_id=tuple(vals.ids), status=tuple(status), reason=tuple(reason), dilution=chosen, ionic_strength=i_val,
-        ionic_strength_source=tuple(s if valid[i] or s else "" for i, s in enumerate(vals.sources)),
+        sample_id=tuple(vals.ids), status=tuple(status), reason=tuple(reason.tolist()), dilution=chosen,
+        ionic_strength=i_val, ionic_strength_source=tuple(vals.sources),
         analyte=analyte, treated_analyte=np.where(valid, t_an[rows, idx], np.nan),
         treated_ionic_strength=np.where(valid, t_i[rows, idx], np.nan), error_mv=e,
         gamma=np.where(valid, np.power(10.0, lg[rows, idx]), np.nan),
@@ -468,15 +471,13 @@ class _Column:
 
 @dataclass(frozen=True)
 class _Flags:
+    """What the reasons in words are built from: each row's values as Python lists (list items
+    format several times faster than numpy scalars) and the batch's constants."""
+
     analyte: list[float]
     i_val: list[float]
     undiluted: _Column
     strongest: _Column  # the largest allowed dilution
-    chosen_dil: list[float]  # at each row's first dilution that works (any value where none does)
-    chosen_analyte: list[float]
-    chosen_ionic: list[float]
-    chosen_err: list[float]
-    chosen_free: list[float]
     cal: tuple[float, float]
     env_hi: float
     budget: float
@@ -485,13 +486,6 @@ class _Flags:
     free_std: float  # the analyte's free share in the standards
     analyte_name: str
 
-    @cached_property
-    def inside_words(self) -> tuple[str, str, str]:
-        """The constant parts of an "inside" reason, formatted once per batch."""
-        fu, cal = self.fu, self.cal
-        return (f" {self.unit} within {cal[0] / fu:.4g}–{cal[1] / fu:.4g}, I ",
-                f" ≤ {self.env_hi:.4g} mol/kg, γ error ", f" mV ≤ {self.budget:.3g}")
-
     def bound(self, f: float) -> str:
         """Words for a sample whose own ions bind the analyte more than the standards' do."""
         if not f < BOUND_SHARE * self.free_std:
@@ -499,23 +493,29 @@ class _Flags:
         return (f" (free {self.analyte_name} {f:.1%} of its total against {self.free_std:.1%} in the standards: "
                 "the sample's ions bind it)")
 
-    def word(self, i: int, valid: bool, problem: str | None, j: int) -> tuple[str, str, float]:
-        if not valid:
-            return INVALID, problem or "invalid input", math.nan
+    def inside(self, rows: list[int]) -> list[str]:
+        """Reasons of the rows that need no dilution."""
+        fu, cal, a, iv, e = self.fu, self.cal, self.analyte, self.i_val, self.undiluted.err
+        p1 = f" {self.unit} within {cal[0] / fu:.4g}–{cal[1] / fu:.4g}, I "
+        p2 = f" ≤ {self.env_hi:.4g} mol/kg, γ error "
+        p3 = f" mV ≤ {self.budget:.3g}"
+        return [f"undiluted: analyte {a[i] / fu:.4g}{p1}{iv[i]:.4g}{p2}{e[i]:.3g}{p3}" for i in rows]
+
+    def dilute(self, rows: list[int], d: list[float], a: list[float], iv: list[float], e: list[float],
+               f: list[float]) -> list[str]:
+        """Reasons of the rows that need a dilution, with the values at the one chosen."""
+        fu, unit = self.fu, self.unit
+        return [f"{self.why_not(i, self.undiluted)}; dilute ×{dk:g}: analyte {ak / fu:.4g} {unit}, I {ik:.4g} "
+                f"mol/kg, γ error {ek:.3g} mV{self.bound(fk)}"
+                for i, dk, ak, ik, ek, fk in zip(rows, d, a, iv, e, f, strict=True)]
+
+    def cannot(self, i: int) -> str:
+        """The reason of a row that no allowed dilution brings into range."""
         fu, cal = self.fu, self.cal
-        if j == 0:
-            p1, p2, p3 = self.inside_words
-            return INSIDE, (f"undiluted: analyte {self.analyte[i] / fu:.4g}{p1}{self.i_val[i]:.4g}{p2}"
-                            f"{self.undiluted.err[i]:.3g}{p3}"), self.undiluted.d
-        if j > 0:
-            return DILUTE, (f"{self.why_not(i, self.undiluted)}; dilute ×{self.chosen_dil[i]:g}: analyte "
-                            f"{self.chosen_analyte[i] / fu:.4g} {self.unit}, I {self.chosen_ionic[i]:.4g} mol/kg, "
-                            f"γ error {self.chosen_err[i]:.3g} mV{self.bound(self.chosen_free[i])}"), \
-                self.chosen_dil[i]
         if self.analyte[i] < cal[0]:
-            return CANNOT, (f"analyte {self.analyte[i] / fu:.4g} {self.unit} is below the calibrated low end "
-                            f"{cal[0] / fu:.4g} even undiluted; use a lower calibration or another method"), math.nan
-        return CANNOT, "no allowed dilution works; " + self.why_not(i, self.strongest), math.nan
+            return (f"analyte {self.analyte[i] / fu:.4g} {self.unit} is below the calibrated low end "
+                    f"{cal[0] / fu:.4g} even undiluted; use a lower calibration or another method")
+        return "no allowed dilution works; " + self.why_not(i, self.strongest)
 
     def why_not(self, i: int, c: _Column) -> str:
         parts = []

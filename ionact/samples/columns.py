@@ -241,15 +241,16 @@ def row_values(specs: list[ColumnSpec], columns: Mapping[str, Sequence[Any]], ro
         if s.role in ("analyte", "ionic_strength", "conductivity", "tds", "ion"):
             v, why = cell_numbers(columns[s.header], delimiter, decimal_comma)
             nums[s.header] = (v * s.factor, why)
-            for i, w in enumerate(why):
-                if w is not None and w != "missing":
-                    _first_reason(reasons, i, f"{s.header} {w}")
+            if why.count(None) < len(why):
+                for i, w in enumerate(why):
+                    if w is not None and w != "missing":
+                        _first_reason(reasons, i, f"{s.header} {w}")
             for i in np.flatnonzero(v < 0).tolist():
                 _first_reason(reasons, i, f"{s.header} {v[i]:g} is negative")
     ids = _ids(columns, by_role.get("id"), n, id_offset)
     a_spec = by_role["analyte"]
     analyte, a_why = nums[a_spec.header]
-    for i, w in enumerate(a_why):
+    for i, w in enumerate(a_why if a_why.count(None) < len(a_why) else ()):
         if w == "missing":
             _first_reason(reasons, i, f"{a_spec.header} is empty: give the expected level (a screening value or a "
                                       "previous result)")
@@ -264,8 +265,8 @@ def row_values(specs: list[ColumnSpec], columns: Mapping[str, Sequence[Any]], ro
 
 def _ids(columns: Mapping[str, Sequence[Any]], spec: ColumnSpec | None, n: int, offset: int) -> list[str]:
     cells = columns[spec.header] if spec else [None] * n
-    return [str(x).strip() if x is not None and str(x).strip() else f"row {offset + i + 1}" for i, x in
-            enumerate(cells)]
+    stripped = ["" if x is None else str(x).strip() for x in cells]
+    return [x or f"row {offset + i + 1}" for i, x in enumerate(stripped)]
 
 
 def _ionic_strength(specs: list[ColumnSpec], nums: dict[str, tuple[np.ndarray, list[str | None]]],

@@ -12,7 +12,6 @@ import csv
 import io
 import math
 import os
-import re
 import tempfile
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -53,36 +52,59 @@ def printable(s: str) -> str:
 
 
 def _num_column(values: np.ndarray) -> list[str]:
-    """Shortest round-trip text of each float (Python's repr); empty for NaN."""
-    return ["" if x != x else repr(x) for x in values.tolist()]
+    """Shortest round-trip text of each float (Python's repr); empty for NaN. A column of few
+    distinct values (the dilutions) formats each value once."""
+    listed = values.tolist()
+    if len(listed) > 64:
+        distinct = set(listed)
+        if len(distinct) * 8 < len(listed):
+            memo = {x: repr(x) for x in distinct if x == x}
+            return [memo[x] if x == x else "" for x in listed]
+    return ["" if x != x else repr(x) for x in listed]
 
 
 _FORMULA = frozenset("=+-@\t\r")
 
 
+def _text_cell(v: Any) -> str:
+    s = "" if v is None else str(v)
+    return "'" + s if s and s[0] in _FORMULA else s
+
+
 def _text_column(values: Any) -> list[str]:
-    return ["'" + s if s and s[0] in _FORMULA else s for s in ("" if v is None else str(v) for v in values)]
-
-
-_NEEDS_QUOTES = re.compile(r'[,"\r\n]')
+    """Cells of a text column with formula-leading text neutralised (not yet quoted). A column
+    of few distinct values (statuses, sources) converts each value once."""
+    values = list(values)
+    if len(values) > 64:
+        distinct = set(values)
+        if len(distinct) * 8 < len(values):
+            memo = {v: _text_cell(v) for v in distinct}
+            return list(map(memo.__getitem__, values))
+    return [_text_cell(v) for v in values]
 
 
 def _quoted(cells: list[str]) -> list[str]:
     """Cells as the csv module writes them by default (minimal quoting, doubled quotes)."""
-    return ['"' + c.replace('"', '""') + '"' if _NEEDS_QUOTES.search(c) else c for c in cells]
+    return ['"' + c.replace('"', '""') + '"' if ("," in c or '"' in c or "\n" in c or "\r" in c) else c
+            for c in cells]
 
 
 def _csv_text(result: SampleCheck, header: bool) -> str:
     """The report's rows (and header) as CSV text, byte for byte what ``csv.writer`` writes,
-    built column by column: only text columns can need quotes, numbers never do."""
+    built column by column: only text columns can need quotes, numbers never do. The cells
+    are laid out row by row between their separators in one list and joined once."""
     heads, cols = [], []
     for h, v in result.columns():
         heads.append(h)
         cols.append(_num_column(np.asarray(v, dtype=float)) if isinstance(v, np.ndarray)
                     else _quoted(_text_column(v)))
-    lines = [",".join(_quoted(heads))] if header else []
-    lines += [",".join(row) for row in zip(*cols, strict=True)]
-    return "\r\n".join(lines) + "\r\n" if lines else ""
+    n, k = len(cols[0]), len(cols)
+    parts: list[str] = [""] * (2 * n * k)
+    for j, col in enumerate(cols):
+        parts[2 * j::2 * k] = col
+    parts[1::2] = ([","] * (k - 1) + ["\r\n"]) * n
+    head = ",".join(_quoted(heads)) + "\r\n" if header else ""
+    return head + "".join(parts)
 
 
 @contextmanager
@@ -143,7 +165,7 @@ def read_report_csv(path: Any) -> list[dict[str, Any]]:
 def _table_lines(result: SampleCheck, limit: int) -> list[str]:
     u = result.unit
     lines = [f"{'sample':<16}{'status':<30}{'dil.':>6}{'analyte ' + u:>20}{'I mol/kg':>10}{'err mV':>8}  reason"]
-    for r in result.rows()[:limit]:
+    for r in result.rows(limit):
         d = "" if math.isnan(r["dilution"]) else f"×{r['dilution']:g}"
         a = r[f"analyte [{u}]"]
         lines.append(f"{printable(r['sample_id'])[:15]:<16}{r['status']:<30}{d:>6}{a:>20.4g}"

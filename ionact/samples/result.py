@@ -77,7 +77,7 @@ class SampleCheck:
         return f"SampleCheck({len(self)} samples — {c}; model {self.model})"
 
     def _repr_html_(self) -> str:
-        rows = self.rows()[:20]
+        rows = self.rows(20)
         head = "".join(f"<th>{html.escape(h)}</th>" for h, _ in self.columns())
         body = "".join("<tr>" + "".join(f"<td>{html.escape(_fmt(v))}</td>" for v in r.values()) + "</tr>"
                        for r in rows)
@@ -101,10 +101,12 @@ class SampleCheck:
             ("reason", self.reason),
         ]
 
-    def rows(self) -> list[dict[str, Any]]:
-        """One dict per sample with the report columns (numbers as floats, NaN where none)."""
-        cols = [(h, v.tolist() if isinstance(v, np.ndarray) else list(v)) for h, v in self.columns()]
-        return [{h: v[i] for h, v in cols} for i in range(len(self))]
+    def rows(self, limit: int | None = None) -> list[dict[str, Any]]:
+        """One dict per sample with the report columns (numbers as floats, NaN where none);
+        only the first ``limit`` samples when it is given."""
+        n = len(self) if limit is None else max(0, min(limit, len(self)))
+        cols = [(h, v[:n].tolist() if isinstance(v, np.ndarray) else list(v[:n])) for h, v in self.columns()]
+        return [{h: v[i] for h, v in cols} for i in range(n)]
 
     def to_dict(self) -> dict[str, Any]:
         """Strict-JSON description (keys do not depend on the chosen unit; null for NaN)."""

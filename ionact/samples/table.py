@@ -188,11 +188,14 @@ def iter_samples_csv(path: Any, *, delimiter: str | None = None, decimal_comma: 
             fh.close()
 
 
-def _parse_block(lines: list[str], first: int, delim: str, src: str) -> list[tuple[int, list[str]]]:
-    """Rows of a block of lines (line numbers from ``first``); a quoted field may not leave its line."""
+def _parse_block(lines: list[str], first: int, delim: str, src: str, into: _Rows) -> None:
+    """The rows of a block of lines (line numbers from ``first``) added to ``into``; a quoted
+    field may not leave its line, and blank rows are skipped."""
     rdr = csv.reader(lines, delimiter=delim, strict=True)
-    out: list[tuple[int, list[str]]] = []
     prev = 0
+    # no line of the block is long enough to hold a cell or a row beyond the limits: skip those checks
+    short = max(map(len, lines), default=0) < min(MAX_CELL, MAX_COLUMNS)
+    rows, numbers = into.rows, into.numbers
     try:
         for cells in rdr:
             if rdr.line_num - prev > 1:
@@ -201,16 +204,48 @@ def _parse_block(lines: list[str], first: int, delim: str, src: str) -> list[tup
             prev = rdr.line_num
             if not cells or not "".join(cells).strip():
                 continue
-            if len(cells) > MAX_COLUMNS:
-                raise InputError(f"{src}: line {first + prev - 1} has {len(cells)} cells; at most {MAX_COLUMNS} "
-                                 "columns are read")
-            if max(map(len, cells)) > MAX_CELL:
-                raise InputError(f"{src}: line {first + prev - 1} has a cell longer than {MAX_CELL} characters")
-            out.append((first + prev - 1, cells))
+            if not short:
+                if len(cells) > MAX_COLUMNS:
+                    raise InputError(f"{src}: line {first + prev - 1} has {len(cells)} cells; at most {MAX_COLUMNS} "
+                                     "columns are read")
+                if max(map(len, cells)) > MAX_CELL:
+                    raise InputError(f"{src}: line {first + prev - 1} has a cell longer than {MAX_CELL} characters")
+            rows.append(tuple(cells))
+            numbers.append(first + prev - 1)
     except csv.Error as exc:
         raise InputError(f"{src}: line {first + prev}: {exc} — a quoted field runs past its line (a stray quote?)"
                          ) from None
-    return out
+
+
+class _Rows:
+    """Sample rows read and not yet handed on, each a tuple of its cells with its line number.
+    (Tuples of strings are let go by the garbage collector's tracking after its first look;
+    millions of kept lists would wake its full passes over the whole heap.)"""
+
+    def __init__(self) -> None:
+        self.rows: list[tuple[str, ...]] = []
+        self.numbers: list[int] = []
+
+    def __len__(self) -> int:
+        return len(self.rows)
+
+    def take(self, k: int, header: list[str], units: dict[str, str], delim: str, decimal_comma: bool | None,
+             src: str, first_row: int) -> SampleTable:
+        """The first ``k`` rows as a table (columns by header); a row of the wrong width is kept
+        (padded or cut) and marked, never re-aligned."""
+        rows, numbers = self.rows[:k], self.numbers[:k]
+        del self.rows[:k], self.numbers[:k]
+        width = len(header)
+        errors: list[str | None] = [None] * len(rows)
+        widths = list(map(len, rows))
+        if widths.count(width) != len(widths):
+            for i, w in enumerate(widths):
+                if w != width:
+                    errors[i] = (f"line {numbers[i]} has {w} cells for {width} columns (a delimiter or a decimal "
+                                 "comma inside a cell?); the row is not re-aligned")
+                    rows[i] = (rows[i] + ("",) * width)[:width]
+        cols = dict(zip(header, map(list, zip(*rows, strict=True)), strict=True))
+        return SampleTable(cols, dict(units), errors, numbers, delim, decimal_comma, src, first_row)
 
 
 def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma: bool | None,
@@ -228,9 +263,7 @@ def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma:
     any_rows = False
     expect_units = True
     block = min(chunk_rows, CHUNK_ROWS)
-    rows: list[list[str]] = []
-    errors: list[str | None] = []
-    numbers: list[int] = []
+    pending = _Rows()
     done = 0  # sample rows in the tables already yielded
     while True:
         start = reader.number + 1
@@ -242,40 +275,21 @@ def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma:
             lines.append(line)
         if not lines:
             break
-        for number, cells in _parse_block(lines, start, delim, src):
-            if expect_units:
-                expect_units = False
-                if _is_units_row(cells, header):
-                    units.update({h: u.strip() for h, u in zip(header[1:], cells[1:], strict=True) if u.strip()})
-                    continue
-            _append(rows, errors, numbers, len(header), cells, number)
-            any_rows = True
-            if len(errors) >= chunk_rows:
-                yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers, done)
-                done += len(errors)
-                rows, errors, numbers = [], [], []
+        _parse_block(lines, start, delim, src, pending)
+        if expect_units and pending.rows:
+            expect_units = False
+            cells = list(pending.rows[0])
+            if _is_units_row(cells, header):
+                units.update({h: u.strip() for h, u in zip(header[1:], cells[1:], strict=True) if u.strip()})
+                del pending.rows[0], pending.numbers[0]
+        any_rows = any_rows or len(pending) > 0
+        while len(pending) >= chunk_rows:
+            yield pending.take(chunk_rows, header, units, delim, decimal_comma, src, done)
+            done += chunk_rows
     if not any_rows:
         raise InputError(f"{src} has a header but no sample rows")
-    if errors:
-        yield _table(header, units, delim, decimal_comma, src, rows, errors, numbers, done)
-
-
-def _table(header: list[str], units: dict[str, str], delim: str, decimal_comma: bool | None, src: str,
-           rows: list[list[str]], errors: list[str | None], numbers: list[int], first_row: int) -> SampleTable:
-    cols = {h: list(col) for h, col in zip(header, zip(*rows, strict=True), strict=True)}
-    return SampleTable(cols, dict(units), errors, numbers, delim, decimal_comma, src, first_row)
-
-
-def _append(rows: list[list[str]], errors: list[str | None], numbers: list[int], width: int, cells: list[str],
-            number: int) -> None:
-    if len(cells) != width:
-        errors.append(f"line {number} has {len(cells)} cells for {width} columns (a delimiter or a decimal comma "
-                      "inside a cell?); the row is not re-aligned")
-        cells = (cells + [""] * width)[:width]
-    else:
-        errors.append(None)
-    numbers.append(number)
-    rows.append(cells)
+    if len(pending):
+        yield pending.take(len(pending), header, units, delim, decimal_comma, src, done)
 
 
 def read_samples_csv(path: Any, *, delimiter: str | None = None, decimal_comma: bool | None = None) -> SampleTable:
