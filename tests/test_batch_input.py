@@ -291,3 +291,17 @@ def test_chunked_read_equals_the_whole_file(tmp_path, chunk):
 def test_report_rows_limit(design):
     r = check_samples({"sample_id": ["a", "b", "c"], "analyte": [1e-4] * 3, "ionic_strength": [0.01] * 3}, design)
     assert r.rows(2) == r.rows()[:2] and r.rows(0) == [] and r.rows(10) == r.rows()
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(st.text(alphabet="0123456789.eE+- \t", max_size=7), min_size=1, max_size=6))
+def test_fast_number_column_accepts_exactly_the_grammar(cells):
+    # the fast path converts a column of digits, signs, points, exponents and blanks with numpy;
+    # it must accept exactly the cells the number grammar accepts, with the same values
+    from ionact.samples.columns import _RE_ALL_NUMBERS, _all_plain_numbers
+
+    fast = _all_plain_numbers(cells)
+    if _RE_ALL_NUMBERS.fullmatch("\n".join(cells)):
+        assert fast is not None and fast.tolist() == [float(c) for c in cells]
+    else:
+        assert fast is None

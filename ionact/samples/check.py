@@ -388,6 +388,8 @@ def _percent(x: object) -> float:
 
 
 def _duplicates(vals: RowValues) -> None:
+    if len(set(vals.ids)) == len(vals.ids):
+        return
     seen: dict[str, int] = {}
     for i, s in enumerate(vals.ids):
         if s in seen:

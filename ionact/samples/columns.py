@@ -174,6 +174,7 @@ def _cell(c: Any, delimiter: str | None, decimal_comma: bool | None) -> tuple[fl
 
 _NUM = r"[ \t]*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?[ \t]*"
 _RE_ALL_NUMBERS = re.compile(rf"(?:{_NUM}\n)*{_NUM}")
+_RE_NUMBER_CHARS = re.compile(r"[0-9.eE+\-\n \t]+")
 
 
 def _all_plain_numbers(cells: Sequence[Any]) -> np.ndarray | None:
@@ -182,9 +183,15 @@ def _all_plain_numbers(cells: Sequence[Any]) -> np.ndarray | None:
         return np.zeros(0)
     if all(type(c) is str for c in cells):
         joined = "\n".join(cells)
-        if joined.count("\n") != len(cells) - 1 or not _RE_ALL_NUMBERS.fullmatch(joined):  # a cell with a newline
+        if joined.count("\n") != len(cells) - 1 or not _RE_NUMBER_CHARS.fullmatch(joined):  # a cell with a newline
             return None
-        return np.array(cells, dtype=float)
+        # only digits, signs, points, exponents and blanks: within these characters the conversion
+        # to float accepts a cell exactly when the grammar (_RE_ALL_NUMBERS) does (tested), and it is
+        # several times faster than matching the grammar
+        try:
+            return np.array(cells, dtype=float)
+        except ValueError:
+            return None
     if all(type(c) in (float, int) for c in cells):
         arr = np.array(cells, dtype=float)
         return arr if np.all(np.isfinite(arr)) else None

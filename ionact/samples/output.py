@@ -12,6 +12,7 @@ import csv
 import io
 import math
 import os
+import re
 import tempfile
 from collections.abc import Iterator
 from contextlib import contextmanager
@@ -64,6 +65,8 @@ def _num_column(values: np.ndarray) -> list[str]:
 
 
 _FORMULA = frozenset("=+-@\t\r")
+_FORMULA_START = re.compile(r"\n[=+\-@\t\r]")
+_QUOTE_CHARS = re.compile(r'[,"\r\n]')
 
 
 def _text_cell(v: Any) -> str:
@@ -73,18 +76,23 @@ def _text_cell(v: Any) -> str:
 
 def _text_column(values: Any) -> list[str]:
     """Cells of a text column with formula-leading text neutralised (not yet quoted). A column
-    of few distinct values (statuses, sources) converts each value once."""
+    of few distinct values (statuses, sources) converts each value once; a column of text in
+    which no cell starts like a formula is taken as it is."""
     values = list(values)
     if len(values) > 64:
         distinct = set(values)
         if len(distinct) * 8 < len(values):
             memo = {v: _text_cell(v) for v in distinct}
             return list(map(memo.__getitem__, values))
+        if set(map(type, values)) == {str} and not _FORMULA_START.search("\n" + "\n".join(values)):
+            return values
     return [_text_cell(v) for v in values]
 
 
 def _quoted(cells: list[str]) -> list[str]:
     """Cells as the csv module writes them by default (minimal quoting, doubled quotes)."""
+    if not _QUOTE_CHARS.search("".join(cells)):
+        return cells
     return ['"' + c.replace('"', '""') + '"' if ("," in c or '"' in c or "\n" in c or "\r" in c) else c
             for c in cells]
 
@@ -236,16 +244,21 @@ class BatchSummary:
 
 
 def _mark_earlier_duplicates(table: Any, seen: dict[str, int], offset: int) -> None:
+    """Mark rows whose id appeared in an earlier chunk, and remember this chunk's first rows of each id."""
     ids = table.columns.get("sample_id")
     if ids is None:
         return
-    for i, raw in enumerate(ids):
-        sid = raw.strip()
-        if not sid:
-            continue
-        if sid in seen and table.row_errors[i] is None:
-            table.row_errors[i] = f"duplicate sample id {sid!r} (first at row {seen[sid] + 1})"
-        seen.setdefault(sid, offset + i)
+    stripped = [raw.strip() for raw in ids]
+    first = dict(zip(reversed(stripped), range(offset + len(stripped) - 1, offset - 1, -1), strict=True))
+    first.pop("", None)
+    earlier = first.keys() & seen.keys()
+    if earlier:
+        for i, sid in enumerate(stripped):
+            if sid in earlier and table.row_errors[i] is None:
+                table.row_errors[i] = f"duplicate sample id {sid!r} (first at row {seen[sid] + 1})"
+        for sid in earlier:
+            del first[sid]
+    seen.update(first)
 
 
 def check_csv(path: Any, design: Any, *, out: Any = None, plot: Any = None, calibration_range: Any = None,

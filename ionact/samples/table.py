@@ -191,11 +191,20 @@ def iter_samples_csv(path: Any, *, delimiter: str | None = None, decimal_comma: 
 def _parse_block(lines: list[str], first: int, delim: str, src: str, into: _Rows) -> None:
     """The rows of a block of lines (line numbers from ``first``) added to ``into``; a quoted
     field may not leave its line, and blank rows are skipped."""
-    rdr = csv.reader(lines, delimiter=delim, strict=True)
-    prev = 0
     # no line of the block is long enough to hold a cell or a row beyond the limits: skip those checks
     short = max(map(len, lines), default=0) < min(MAX_CELL, MAX_COLUMNS)
     rows, numbers = into.rows, into.numbers
+    if short:  # the common block: one row per line, none blank, taken whole
+        try:
+            parsed = list(csv.reader(lines, delimiter=delim, strict=True))
+        except csv.Error:
+            parsed = []  # the row-by-row reading below names the line
+        if len(parsed) == len(lines) and all(map(str.strip, map("".join, parsed))):
+            rows.extend(map(tuple, parsed))
+            numbers.extend(range(first, first + len(lines)))
+            return
+    rdr = csv.reader(lines, delimiter=delim, strict=True)
+    prev = 0
     try:
         for cells in rdr:
             if rdr.line_num - prev > 1:
