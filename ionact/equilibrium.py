@@ -351,18 +351,24 @@ class State:
     notes: tuple[str, ...]
 
 
-def _log_m(net: Network, logk: np.ndarray, x: np.ndarray, lg: np.ndarray, log_ah: np.ndarray | None) -> np.ndarray:
-    """log10 m of every species (n_s, N) from ln m of the components (n_c, N) and log10 γ."""
-    la = x / LN10 + lg[: len(net.components)]  # log10 activity of components
-    if log_ah is not None:
-        la[net.h] = log_ah
-    return np.minimum(np.asarray(logk + net.nu @ la - lg), 30.0)  # nothing exceeds 10^30 mol/kg mid-iteration
-
-
 def _molalities(net: Network, logk: np.ndarray, x: np.ndarray, lg: np.ndarray, log_ah: np.ndarray | None,
                 alive: np.ndarray) -> np.ndarray:
-    """Molalities of every species (n_s, N), mol/kg; zero where ``alive`` is zero."""
-    return np.asarray(np.exp(LN10 * _log_m(net, logk, x, lg, log_ah)) * alive)
+    """Molalities of every species (n_s, N), mol/kg, from ln m of the components (n_c, N) and
+    log10 γ; zero where ``alive`` is zero. log10 m = log K + ν·log10 a(components) − log10 γ,
+    capped at 30 (nothing exceeds 10^30 mol/kg mid-iteration); computed in place, as this runs
+    several times an iteration on the whole batch."""
+    la = x / LN10
+    la += lg[: len(net.components)]
+    if log_ah is not None:
+        la[net.h] = log_ah
+    out = np.asarray(net.nu @ la)
+    out += logk
+    out -= lg
+    np.minimum(out, 30.0, out=out)
+    out *= LN10
+    np.exp(out, out=out)
+    out *= alive
+    return out
 
 
 def _alive(net: Network, absent: np.ndarray) -> np.ndarray:
@@ -464,8 +470,12 @@ def _equilibrate_block(net: Network, totals: np.ndarray, temperature: np.ndarray
         ionic = 0.5 * z2 @ m
         near = w["near"]
         if np.any(near):  # γ from the composition at this x, made self-consistent, then the species again
-            w["lg"][:, near], w["slope"][:, near] = _gammas_and_slopes(net, m[:, near], w["t"][near], ionic[near],
-                                                                        choice)
+            if np.all(near):  # (the usual case: no gathering and scattering of every column)
+                lg_now, w["slope"] = _gammas_and_slopes(net, m, w["t"], ionic, choice)
+                w["lg"] = np.require(lg_now, requirements=["O", "W"])  # moved in place below: never a kernel's own
+            else:
+                w["lg"][:, near], w["slope"][:, near] = _gammas_and_slopes(net, m[:, near], w["t"][near],
+                                                                            ionic[near], choice)
             m = _molalities(net, w["logk"], w["x"], w["lg"], w.arrays.get("ah"), w["alive"])
             e = _gamma_shift(net, w["slope"], unknown)
             delta = (0.5 * z2 @ m - ionic) / np.maximum(1.0 - 0.5 * z2 @ (m * e), 0.1) * near
@@ -673,17 +683,18 @@ def _solve_stack(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
     Gaussian elimination vectorised over the stack, faster than a LAPACK call per matrix
     for k ≲ 10; ``a`` is overwritten. The matrices are diagonally scaled symmetric positive
-    (semi-)definite Jacobians with a unit diagonal, so no pivoting is needed and only the
-    trailing block is updated (the eliminated column is not needed again). Returns the
-    solutions and the samples whose elimination broke down (a non-finite result), for the
-    caller to solve otherwise.
+    (semi-)definite Jacobians with a unit diagonal, so no pivoting is needed, and the trailing
+    block stays symmetric: only its upper triangle is updated, and each step's multipliers
+    come from the pivot's row (its column by symmetry). Returns the solutions and the samples
+    whose elimination broke down (a non-finite result), for the caller to solve otherwise.
     """
     k = b.shape[0]
     y = np.array(b)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         for c in range(k - 1):
-            f = a[c + 1:, c] / a[c, c]
-            a[c + 1:, c + 1:] -= f[:, None, :] * a[None, c, c + 1:]
+            f = a[c, c + 1:] / a[c, c]
+            for i in range(c + 1, k):
+                a[i, i:] -= f[i - c - 1] * a[c, i:]
             y[c + 1:] -= f[:, None, :] * y[c][None]
         x = np.empty_like(y)
         for c in range(k - 1, -1, -1):
