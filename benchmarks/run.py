@@ -9,10 +9,12 @@ measured here, never in the tests.
 
 from __future__ import annotations
 
+import atexit
 import csv
 import json
 import math
 import os
+import shutil
 import statistics
 import subprocess
 import sys
@@ -32,6 +34,13 @@ warnings.simplefilter("ignore", ia.ValidityRangeWarning)
 QUICK = "--quick" in sys.argv  # `make bench-quick`: every workload, smaller and fewer rounds (under a minute)
 SCALE = 10 if QUICK else 1
 ROUNDS = 3 if QUICK else 7
+
+
+def _scratch() -> Path:
+    """A scratch folder removed when the benchmarks end (the 10⁶-row report alone is ~250 MB)."""
+    path = Path(tempfile.mkdtemp(prefix="ionact-bench-"))
+    atexit.register(shutil.rmtree, path, True)
+    return path
 
 
 def median_time(fn, repeat=5) -> float:
@@ -384,7 +393,7 @@ def bench_check(n=100_000) -> None:
     from ionact.samples import check_csv
 
     design = ia.design_adjuster(**load_method("example:nitrate_irrigation"))
-    tmp = Path(tempfile.mkdtemp())
+    tmp = _scratch()
     src, out = tmp / "batch.csv", tmp / "report.csv"
     _write_batch(src, n)
 
@@ -488,7 +497,7 @@ def bench_import() -> None:
     # the command line on the shipped example batch, wall time of the whole process
     from ionact.method import load_method
 
-    tmp = Path(tempfile.mkdtemp())
+    tmp = _scratch()
     design = tmp / "design.json"
     design.write_text(json.dumps(ia.design_adjuster(**load_method("example:nitrate_irrigation")).to_dict()))
     batch = Path(ia.__file__).parent / "examples" / "irrigation_batch.csv"

@@ -267,11 +267,12 @@ def activity_coefficients(
 def _gammas(names: Sequence[str], z: np.ndarray, lg: np.ndarray, shape: tuple[int, ...], by_charge: bool
             ) -> dict[str, float | np.ndarray]:
     """γ = 10^lg of every ion in the solution's shape. Where the model gives every ion of a
-    charge the same γ (``by_charge``), the exponential is taken once per charge and copied."""
+    charge number the same γ (``by_charge``: models of z² and I alone), the exponential is
+    taken once per z² and copied."""
     out: dict[str, float | np.ndarray] = {}
     done: dict[float, np.ndarray] = {}
     for k, n in enumerate(names):
-        key = float(z[k])
+        key = float(z[k]) ** 2
         if by_charge and key != 0 and key in done:
             g = done[key].copy()
         else:

@@ -180,7 +180,7 @@ class ModelInfo:
     needs: Needs = field(repr=False)
     in_auto: bool = True
     extra_violations: Violations | None = field(default=None, repr=False)
-    charge_only: bool = False  # γ of a charged ion depends on it only through its charge (and I, T)
+    charge_only: bool = False  # γ of a charged ion depends on it only through z² (and I, T)
 
     def violations(self, batch: Batch, options: Options) -> list[Violation]:
         """Where this batch leaves the model's validity (ionic strength, salt limits, temperature)."""
