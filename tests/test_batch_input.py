@@ -305,3 +305,20 @@ def test_fast_number_column_accepts_exactly_the_grammar(cells):
         assert fast is not None and fast.tolist() == [float(c) for c in cells]
     else:
         assert fast is None
+
+
+@pytest.mark.parametrize("chunk", [2, 1000])
+def test_reader_names_the_line_with_nul_or_endless_text(tmp_path, chunk):
+    # a NUL byte (not a text file) or a line beyond the reader's limit stops the read with an
+    # error naming that line, wherever it falls in the block of lines read at once
+    from ionact.samples import iter_samples_csv
+    from ionact.samples.table import MAX_LINE_BYTES
+
+    head = "sample_id,analyte,conductivity\n" + "".join(f"S{i},1e-4,100\n" for i in range(4))
+    nul = _write(tmp_path, head + "S9,1e-4\x00,100\nS10,1e-4,100\n")
+    with pytest.raises(InputError, match="line 6 contains NUL"):
+        list(iter_samples_csv(nul, chunk_rows=chunk))
+    endless = tmp_path / "endless.csv"
+    endless.write_text(head + "S9," + "1" * (3 * MAX_LINE_BYTES), encoding="utf-8")
+    with pytest.raises(InputError, match=f"line 6 is longer than {MAX_LINE_BYTES}"):
+        list(iter_samples_csv(endless, chunk_rows=chunk))

@@ -181,7 +181,7 @@ def _all_plain_numbers(cells: Sequence[Any]) -> np.ndarray | None:
     """The column as floats when every cell is a number by the grammar (text) or a finite float; else None."""
     if not cells:
         return np.zeros(0)
-    if all(type(c) is str for c in cells):
+    if set(map(type, cells)) == {str}:
         joined = "\n".join(cells)
         if joined.count("\n") != len(cells) - 1 or not _RE_NUMBER_CHARS.fullmatch(joined):  # a cell with a newline
             return None

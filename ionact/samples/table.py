@@ -95,12 +95,32 @@ class _LineReader:
         if line == "":
             return None
         self.number += 1
+        self._check(line, self.number)
+        return line
+
+    def block(self, k: int) -> list[str]:
+        """Up to ``k`` lines (fewer at the end of the text), each checked as :meth:`next` checks it."""
+        readline, limit = self.fh.readline, MAX_LINE_BYTES + 1
+        lines = []
+        for _ in range(k):
+            line = readline(limit)
+            if not line:
+                break
+            lines.append(line)
+            if len(line) > MAX_LINE_BYTES:  # stop at once: the text may be one endless line
+                self._check(line, self.number + len(lines))
+        if "\x00" in "".join(lines):
+            for i, line in enumerate(lines):  # the first line holding one, named
+                self._check(line, self.number + i + 1)
+        self.number += len(lines)
+        return lines
+
+    def _check(self, line: str, number: int) -> None:
         if len(line) > MAX_LINE_BYTES and not line.endswith("\n"):
-            raise InputError(f"{self.src}: line {self.number} is longer than {MAX_LINE_BYTES} characters "
+            raise InputError(f"{self.src}: line {number} is longer than {MAX_LINE_BYTES} characters "
                              "(not a sample table?)")
         if "\x00" in line:
-            raise InputError(f"{self.src}: line {self.number} contains NUL bytes (not a text file?)")
-        return line
+            raise InputError(f"{self.src}: line {number} contains NUL bytes (not a text file?)")
 
 
 def _cells(line: str, delimiter: str, src: str, number: int) -> list[str]:
@@ -278,12 +298,7 @@ def _chunks(reader: _LineReader, src: str, delimiter: str | None, decimal_comma:
     done = 0  # sample rows in the tables already yielded
     while True:
         start = reader.number + 1
-        lines = []
-        for _ in range(block):
-            line = reader.next()
-            if line is None:
-                break
-            lines.append(line)
+        lines = reader.block(block)
         if not lines:
             break
         _parse_block(lines, start, delim, src, pending)
