@@ -266,22 +266,21 @@ def activity_coefficients(
 
 def _gammas(names: Sequence[str], z: np.ndarray, lg: np.ndarray, shape: tuple[int, ...], by_charge: bool
             ) -> dict[str, float | np.ndarray]:
-    """γ = 10^lg of every ion in the solution's shape. Where the model gives every ion of a
-    charge number the same γ (``by_charge``: models of z² and I alone), the exponential is
-    taken once per z² and copied."""
-    out: dict[str, float | np.ndarray] = {}
-    done: dict[float, np.ndarray] = {}
-    for k, n in enumerate(names):
+    """γ = 10^lg of every ion in the solution's shape, each a row of one block (one allocation
+    for the batch). Where the model gives every ion of a charge number the same γ
+    (``by_charge``: models of z² and I alone), the exponential is taken once per z² and copied."""
+    lg = np.asarray(lg, dtype=float).reshape(len(names), -1)
+    block = np.empty(lg.shape)
+    first: dict[float, int] = {}
+    for k in range(len(names)):
         key = float(z[k]) ** 2
-        if by_charge and key != 0 and key in done:
-            g = done[key].copy()
+        if by_charge and key != 0 and key in first:
+            block[k] = block[first[key]]
         else:
-            g = np.multiply(lg[k], LN10)
-            np.exp(g, out=g)
-            g = g.reshape(shape)
-            done[key] = g
-        out[n] = float(g) if g.ndim == 0 else g
-    return out
+            np.multiply(lg[k], LN10, out=block[k])
+            np.exp(block[k], out=block[k])
+            first[key] = k
+    return {n: float(block[k, 0]) if not shape else block[k].reshape(shape) for k, n in enumerate(names)}
 
 
 def _plain(a: Any) -> float | np.ndarray:
