@@ -245,14 +245,13 @@ def activity_coefficients(
     from .equilibrium import held_ph, speciation_of, species_step
 
     step = species_step(batch.ions, batch.m, batch.t, name, opts, fallback, equilibrium=equilibrium,
-                        ph=held_ph(pH, solution.shape), species=species, batch=batch)
+                        ph=held_ph(pH, solution.shape), species=species, batch=batch, by_charge=True)
     choice = step.choice
     for problem in step.violations:
         warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))
     notes = list(choice.lacking and [choice.reason] or []) + list(step.notes)
     shape = solution.shape
-    by_charge = choice.info.charge_only and step.state is None  # free ions: one γ per charge
-    gam = _gammas(batch.names, batch.z, step.log10_gamma, shape, by_charge)
+    gam = _gammas(batch.names, step.log10_gamma, shape, step.rows)
     out = ActivityCoefficients(gam, choice, notes, solution.ionic_strength, step.violations)
     out.index = solution.index
     out.speciation = speciation_of(step, shape, batch.t)
@@ -264,22 +263,22 @@ def activity_coefficients(
     return out
 
 
-def _gammas(names: Sequence[str], z: np.ndarray, lg: np.ndarray, shape: tuple[int, ...], by_charge: bool
+def _gammas(names: Sequence[str], lg: np.ndarray, shape: tuple[int, ...], rows: np.ndarray | None
             ) -> dict[str, float | np.ndarray]:
     """γ = 10^lg of every ion in the solution's shape, each a row of one block (one allocation
-    for the batch). Where the model gives every ion of a charge number the same γ
-    (``by_charge``: models of z² and I alone), the exponential is taken once per z² and copied."""
-    lg = np.asarray(lg, dtype=float).reshape(len(names), -1)
-    block = np.empty(lg.shape)
-    first: dict[float, int] = {}
-    for k in range(len(names)):
-        key = float(z[k]) ** 2
-        if by_charge and key != 0 and key in first:
-            block[k] = block[first[key]]
+    for the batch). ``rows`` (models of z² and I alone): ``lg`` has one row per z², ion k's is
+    ``rows[k]``; its exponential is taken once and copied to the other ions of that z²."""
+    lg = np.asarray(lg, dtype=float)
+    lg = lg.reshape(lg.shape[0], -1)
+    block = np.empty((len(names), lg.shape[1]))
+    first: dict[int, int] = {}
+    for k, r in enumerate(range(len(names)) if rows is None else rows.tolist()):
+        if r in first:
+            block[k] = block[first[r]]
         else:
-            np.multiply(lg[k], LN10, out=block[k])
+            np.multiply(lg[r], LN10, out=block[k])
             np.exp(block[k], out=block[k])
-            first[key] = k
+            first[r] = k
     return {n: float(block[k, 0]) if not shape else block[k].reshape(shape) for k, n in enumerate(names)}
 
 

@@ -1140,17 +1140,21 @@ class Step:
     network: Network | None
     notes: tuple[str, ...]
     violations: tuple[Any, ...]
+    rows: np.ndarray | None = None  # given: log10_gamma has a row per z² (and per neutral); input k's is rows[k]
 
 
 def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model: str, opts: Any,
                  fallback: str | None, *, equilibrium: bool | None = None, ph: np.ndarray | None = None,
                  species: Iterable[Complex] | None = None, choice: ModelChoice | None = None,
-                 max_iterations: int = MAX_ITERATIONS, checks: bool = True, batch: Batch | None = None) -> Step:
+                 max_iterations: int = MAX_ITERATIONS, checks: bool = True, batch: Batch | None = None,
+                 by_charge: bool = False) -> Step:
     """Speciate where the inputs react (or as asked) and evaluate the model: one call for every job.
 
     ``checks=False`` skips the model's notes and range checks (for inner loops that call it
     many times; the final evaluation of a job makes them). ``batch`` is the inputs' Batch when
-    the caller has built it already.
+    the caller has built it already. ``by_charge``: where nothing is speciated and the model
+    depends on z² and I alone, evaluate one species per z² (and every neutral one) and say in
+    ``Step.rows`` which row is each input's.
     """
     batch = batch if batch is not None else Batch.of(inputs, m_in, t)
     free_choice = choice or resolve_model(batch, model, options=opts, fallback=fallback)
@@ -1158,6 +1162,10 @@ def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model
                                 and not reacts(_network(inputs, None, _pairless(free_choice)))):
         if not checks:
             return Step(free_choice, free_choice.info.kernel(batch, free_choice.options)[0], None, None, (), ())
+        if by_charge and free_choice.info.charge_only:
+            reps, rows = _one_per_charge(batch.z)
+            ev = evaluate(free_choice, batch, rows=reps)
+            return Step(free_choice, ev.log10_gamma, None, None, ev.notes, ev.violations, rows)
         ev = evaluate(free_choice, batch)
         return Step(free_choice, ev.log10_gamma, None, None, ev.notes, ev.violations)
     net = _network(inputs, species, ())
@@ -1177,6 +1185,23 @@ def species_step(inputs: tuple[Ion, ...], m_in: np.ndarray, t: np.ndarray, model
     ev = evaluate(ch, Batch.of(net.species, state.molality, t), paired=net.paired)
     far = tuple(Violation("temperature", n) for n in net.temperature_notes(t))
     return Step(ch, lg, state, net, ev.notes, ev.violations + far)
+
+
+def _one_per_charge(z: np.ndarray) -> tuple[list[int], np.ndarray]:
+    """The first species of each z² (every neutral species on its own), and each species' place
+    among them."""
+    reps: list[int] = []
+    seen: dict[float, int] = {}
+    rows = np.empty(len(z), dtype=int)
+    for k, zk in enumerate(z.tolist()):
+        key = zk * zk
+        if key == 0 or key not in seen:
+            seen[key] = len(reps)
+            rows[k] = len(reps)
+            reps.append(k)
+        else:
+            rows[k] = seen[key]
+    return reps, rows
 
 
 def free_fraction_of(step: Step, name: str) -> np.ndarray | None:

@@ -249,7 +249,9 @@ def _once_per_temperature(fn, t: np.ndarray) -> np.ndarray:
     t = np.asarray(t, dtype=float)
     if t.size > 1:
         first = t.flat[0]
-        if np.all(t == first):  # one value, broadcast (read-only) over the batch: no array to fill
+        # one value, broadcast (read-only) over the batch: no array to fill (a broadcast of one
+        # temperature, as a Solution carries it, is seen from its strides without a pass)
+        if (t.ndim == 1 and t.strides[0] == 0) or np.all(t == first):
             return np.broadcast_to(float(fn(np.asarray(first))), t.shape)
     return np.asarray(fn(t), dtype=float)
 

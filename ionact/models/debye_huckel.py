@@ -56,7 +56,14 @@ def _lg_guntelberg(z2, sqrt_i, a):
 
 
 def _lg_davies(z2, sqrt_i, i, a, c=DAVIES_COEFFICIENT):
-    return -a * z2 * (sqrt_i / (1.0 + sqrt_i) - c * i)
+    if not (isinstance(sqrt_i, np.ndarray) and sqrt_i.ndim
+            and np.broadcast_shapes(np.shape(z2), sqrt_i.shape, np.shape(i), np.shape(a)) == sqrt_i.shape):
+        return -a * z2 * (sqrt_i / (1.0 + sqrt_i) - c * i)
+    f = 1.0 + sqrt_i  # the same operations on one buffer of the result's shape
+    np.divide(sqrt_i, f, out=f)
+    f -= c * i
+    f *= -a * z2
+    return f
 
 
 def _lg_truesdell_jones(z2, sqrt_i, i, a, b, size, bj):

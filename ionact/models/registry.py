@@ -11,7 +11,7 @@ temperature). Nothing here warns or loops over samples: the resolver
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Mapping
+from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -61,6 +61,13 @@ class Batch:
         ionic = 0.5 * (z**2) @ m if len(ions) else np.zeros(m.shape[1:])
         tt = np.broadcast_to(np.asarray(t, dtype=float), ionic.shape)
         return cls(tuple(i.name for i in ions), tuple(ions), z, m, tt, ionic)
+
+    def take(self, rows: Sequence[int]) -> Batch:
+        """The species at ``rows`` in the same solutions: the ionic strength stays the whole
+        batch's (for models of z² and I alone, a species' γ needs nothing else)."""
+        idx = list(rows)
+        return Batch(tuple(self.names[i] for i in idx), tuple(self.ions[i] for i in idx), self.z[idx],
+                     self.m[idx], self.t, self.ionic)
 
 
 @dataclass(frozen=True)
@@ -259,9 +266,12 @@ def _needs_pitzer(ions: tuple[Ion, ...], o: Options) -> list[str]:
 
 
 def _common(b: Batch) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """z² (n, 1), √I (1, N) and A: (1, N), or (1, 1) when every sample has the same
+    temperature (then the scalar factors of a model combine before they meet the batch)."""
     z2 = (b.z**2)[:, None]
     sq = np.sqrt(b.ionic)[None, :]
-    a = water.dh_a_array(b.t)[None, :]
+    a = water.dh_a_array(b.t)
+    a = a[:1][None, :] if a.size > 1 and a.strides[0] == 0 else a[None, :]
     return z2, sq, a
 
 

@@ -11,7 +11,7 @@ validity. Callers decide whether those become warnings (the public functions) or
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -191,14 +191,18 @@ def log10_gamma(choice: ModelChoice, batch: Batch) -> np.ndarray:
     return choice.info.kernel(batch, choice.options)[0]
 
 
-def evaluate(choice: ModelChoice, batch: Batch, *, paired: frozenset[frozenset[str]] = frozenset()) -> Evaluation:
+def evaluate(choice: ModelChoice, batch: Batch, *, paired: frozenset[frozenset[str]] = frozenset(),
+             rows: Sequence[int] | None = None) -> Evaluation:
     """Run the chosen model on a batch: log10 γ, the model's notes, and range problems.
 
     ``paired`` names the cation–anion pairs whose association the equilibrium step already
-    solves; the free-ion association warning leaves them out.
+    solves; the free-ion association warning leaves them out. ``rows`` (models of z² and I
+    alone) evaluates only those species, the range checks still on the whole batch.
     """
     info = choice.info
-    lg, notes = info.kernel(batch, choice.options)
+    if rows is not None and not info.charge_only:
+        raise InputError(f"model {info.name} depends on more than the charge: evaluate every species")
+    lg, notes = info.kernel(batch if rows is None else batch.take(rows), choice.options)
     problems = info.violations(batch, choice.options)
     if info.name in DH_FAMILY and choice.requested == "auto":
         problems += _association_warning(batch, lg, info.name, paired)
