@@ -251,7 +251,7 @@ def activity_coefficients(
         warn_range(str(problem) + (f" (auto: {choice.reason})" if choice.requested == "auto" else ""))
     notes = list(choice.lacking and [choice.reason] or []) + list(step.notes)
     shape = solution.shape
-    gam = _gammas(batch.names, step.log10_gamma, shape, step.rows)
+    gam = _gammas(batch.names, step.log10_gamma, shape, step.rows, batch.z)
     out = ActivityCoefficients(gam, choice, notes, solution.ionic_strength, step.violations)
     out.index = solution.index
     out.speciation = speciation_of(step, shape, batch.t)
@@ -263,23 +263,41 @@ def activity_coefficients(
     return out
 
 
-def _gammas(names: Sequence[str], lg: np.ndarray, shape: tuple[int, ...], rows: np.ndarray | None
-            ) -> dict[str, float | np.ndarray]:
+def _gammas(names: Sequence[str], lg: np.ndarray, shape: tuple[int, ...], rows: np.ndarray | None,
+            z: np.ndarray) -> dict[str, float | np.ndarray]:
     """γ = 10^lg of every ion in the solution's shape, each a row of one block (one allocation
     for the batch). ``rows`` (models of z² and I alone): ``lg`` has one row per z², ion k's is
-    ``rows[k]``; its exponential is taken once and copied to the other ions of that z²."""
+    ``rows[k]``; the exponential is taken once per z² and copied to the other ions of that z².
+    There log10 γ(z² = 4) is exactly 4·log10 γ(z² = 1) (a product by a power of two), so where
+    both occur γ(z² = 4) is γ(z² = 1)⁴, two squarings instead of a second exponential (equal to
+    it within a few units in the last place)."""
     lg = np.asarray(lg, dtype=float)
     lg = lg.reshape(lg.shape[0], -1)
+    order = list(range(len(names))) if rows is None else rows.tolist()
+    z2 = (np.asarray(z, dtype=float) ** 2).tolist()
     block = np.empty((len(names), lg.shape[1]))
     first: dict[int, int] = {}
-    for k, r in enumerate(range(len(names)) if rows is None else rows.tolist()):
+    one = next((k for k in range(len(names)) if rows is not None and z2[k] == 1.0), None)
+    if one is not None:  # the singly charged row first: the doubly charged ones follow from it
+        _exp10(lg[order[one]], block[one])
+        first[order[one]] = one
+    for k, r in enumerate(order):
         if r in first:
-            block[k] = block[first[r]]
+            if first[r] != k:
+                block[k] = block[first[r]]
+            continue
+        if one is not None and z2[k] == 4.0:
+            np.square(block[one], out=block[k])
+            np.square(block[k], out=block[k])
         else:
-            np.multiply(lg[r], LN10, out=block[k])
-            np.exp(block[k], out=block[k])
-            first[r] = k
+            _exp10(lg[r], block[k])
+        first[r] = k
     return {n: float(block[k, 0]) if not shape else block[k].reshape(shape) for k, n in enumerate(names)}
+
+
+def _exp10(lg: np.ndarray, out: np.ndarray) -> None:
+    np.multiply(lg, LN10, out=out)
+    np.exp(out, out=out)
 
 
 def _plain(a: Any) -> float | np.ndarray:

@@ -65,3 +65,17 @@ def test_evaluating_some_species_only_for_models_of_the_charge():
     with pytest.raises(InputError, match="depends on more than the charge"):
         evaluate(resolve_model(b, name, options=opts, fallback=fallback), b, rows=[0])
     assert get_model("davies").charge_only
+
+
+@pytest.mark.parametrize("rows", [[0], [1, 2], [0, 2, 4], [4, 1], [0, 1, 3]])
+def test_batch_take_keeps_the_rows_asked_for(rows):
+    from ionact.models.registry import Batch
+
+    sol = ia.Solution({"Na+": [0.1, 0.2], "K+": [0.01, 0.02], "Ca^2+": [0.03, 0.01], "Cl-": [0.17, 0.22],
+                       "NO3-": [0.01, 0.02]}, balance="Cl-")
+    b = Batch.of(tuple(sol.ion(n) for n in sol.ions), sol.molality_array.reshape(5, -1), np.array([25.0, 25.0]))
+    t = b.take(rows)
+    assert t.names == tuple(b.names[i] for i in rows)
+    np.testing.assert_array_equal(t.m, b.m[rows])
+    np.testing.assert_array_equal(t.z, b.z[rows])
+    assert t.ionic is b.ionic

@@ -66,8 +66,11 @@ class Batch:
         """The species at ``rows`` in the same solutions: the ionic strength stays the whole
         batch's (for models of z² and I alone, a species' γ needs nothing else)."""
         idx = list(rows)
-        return Batch(tuple(self.names[i] for i in idx), tuple(self.ions[i] for i in idx), self.z[idx],
-                     self.m[idx], self.t, self.ionic)
+        step = idx[1] - idx[0] if len(idx) > 1 else 1
+        evenly = step > 0 and idx == list(range(idx[0], idx[-1] + 1, step)) if idx else False
+        m = self.m[idx[0]:idx[-1] + 1:step] if evenly else self.m[idx]  # a view where the rows allow
+        return Batch(tuple(self.names[i] for i in idx), tuple(self.ions[i] for i in idx), self.z[idx], m, self.t,
+                     self.ionic)
 
 
 @dataclass(frozen=True)
