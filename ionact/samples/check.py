@@ -38,7 +38,7 @@ from .table import SampleTable
 __all__ = ["Method", "check_samples", "DEFAULT_DILUTIONS", "CHUNK"]
 
 DEFAULT_DILUTIONS = (1, 2, 5, 10, 20, 50, 100)
-CHUNK = 20000
+CHUNK = 2000  # samples evaluated at a time: their arrays are reused from the heap, not fresh pages
 BOUND_SHARE = 0.99  # a sample whose free analyte share is below this × the standards' gets it named
 
 

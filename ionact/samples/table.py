@@ -41,7 +41,7 @@ DELIMITERS = {",": "comma", ";": "semicolon", "\t": "tab"}
 _RE_UNIT_CELL = re.compile(r"[A-Za-zµμ°][A-Za-z0-9µμ°/ .]*")
 # rows a streamed check reads, checks and writes at a time: its arrays (rows × 7 dilutions ×
 # ions) stay small enough to be reused from the heap (no fresh pages each chunk) and in cache
-CHUNK_ROWS = 5_000
+CHUNK_ROWS = 2_000
 
 
 @dataclass(frozen=True)
