@@ -172,6 +172,8 @@ def _cell(c: Any, delimiter: str | None, decimal_comma: bool | None) -> tuple[fl
     return math.nan, f"{shown!r} is not a number"
 
 
+# the grammar of a column of plain numbers, one a line (the reference the fast conversion in
+# _all_plain_numbers is tested against), and the characters such a column may hold
 _NUM = r"[ \t]*[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?[ \t]*"
 _RE_ALL_NUMBERS = re.compile(rf"(?:{_NUM}\n)*{_NUM}")
 _RE_NUMBER_CHARS = re.compile(r"[0-9.eE+\-\n \t]+")
