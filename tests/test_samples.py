@@ -237,3 +237,12 @@ def test_report_text_is_what_the_csv_module_writes(design):
     w.writerow([h for h, _ in cols])
     w.writerows(zip(*cells, strict=True))
     assert _csv_text(r, header=True) == buf.getvalue()
+
+
+def test_report_numbers_of_a_column_with_few_values_keep_their_exact_form():
+    # a column of few distinct values is formatted once per value; NaN stays empty and the two
+    # zeros keep their signs (they are one key of a dictionary)
+    from ionact.samples.output import _num_column
+
+    values = np.array([1.0, 2.0, 0.0, -0.0, np.nan, 5.0, 1.0] * 20)
+    assert _num_column(values) == ["" if v != v else repr(float(v)) for v in values]

@@ -60,7 +60,8 @@ def _num_column(values: np.ndarray) -> list[str]:
         distinct = set(listed)
         if len(distinct) * 8 < len(listed):
             memo = {x: repr(x) for x in distinct if x == x}
-            return [memo[x] if x == x else "" for x in listed]
+            # NaN is empty; zeros are written each for itself (0.0 and -0.0 are one key of the memo)
+            return [memo[x] if x else ("" if x != x else repr(x)) for x in listed]
     return ["" if x != x else repr(x) for x in listed]
 
 
