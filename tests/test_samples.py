@@ -244,5 +244,7 @@ def test_report_numbers_of_a_column_with_few_values_keep_their_exact_form():
     # zeros keep their signs (they are one key of a dictionary)
     from ionact.samples.output import _num_column
 
-    values = np.array([1.0, 2.0, 0.0, -0.0, np.nan, 5.0, 1.0] * 20)
+    values = np.array([1.0, 2.0, 0.0, -0.0, 5.0, 1.0] * 100 + [np.nan] * 3 + [-0.0, 2.0])
+    distinct = set(values.tolist())
+    assert len(distinct) * 8 < values.size  # the path that formats each value once
     assert _num_column(values) == ["" if v != v else repr(float(v)) for v in values]

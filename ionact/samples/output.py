@@ -61,7 +61,7 @@ def _num_column(values: np.ndarray) -> list[str]:
         if len(distinct) * 8 < len(listed):
             memo = {x: repr(x) for x in distinct if x == x}
             # NaN is empty; zeros are written each for itself (0.0 and -0.0 are one key of the memo)
-            return [memo[x] if x else ("" if x != x else repr(x)) for x in listed]
+            return [memo[x] if x and x == x else ("" if x != x else repr(x)) for x in listed]
     return ["" if x != x else repr(x) for x in listed]
 
 
