@@ -33,12 +33,12 @@ from ..species import Ion, Salt, resolve_ion
 from ..units import MOLAR, parse_amount
 from .columns import DEFAULT_CHARGE_BALANCE_PERCENT, RowValues, column_specs, row_values
 from .result import CANNOT, DILUTE, INSIDE, INVALID, SampleCheck
-from .table import SampleTable
+from .table import CHUNK_ROWS, SampleTable
 
 __all__ = ["Method", "check_samples", "DEFAULT_DILUTIONS", "CHUNK"]
 
 DEFAULT_DILUTIONS = (1, 2, 5, 10, 20, 50, 100)
-CHUNK = 2000  # samples evaluated at a time: their arrays are reused from the heap, not fresh pages
+CHUNK = CHUNK_ROWS  # samples evaluated at a time, for the same reason as a streamed chunk's size
 BOUND_SHARE = 0.99  # a sample whose free analyte share is below this × the standards' gets it named
 
 

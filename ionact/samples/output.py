@@ -52,16 +52,24 @@ def printable(s: str) -> str:
     return "".join(c if c.isprintable() else f"\\x{ord(c):02x}" for c in s)
 
 
+def _few_distinct(values: list[Any]) -> set[Any] | None:
+    """The distinct values of a long column that holds few of them (worth formatting each
+    once), else None."""
+    if len(values) <= 64:
+        return None
+    distinct = set(values)
+    return distinct if len(distinct) * 8 < len(values) else None
+
+
 def _num_column(values: np.ndarray) -> list[str]:
     """Shortest round-trip text of each float (Python's repr); empty for NaN. A column of few
     distinct values (the dilutions) formats each value once."""
     listed = values.tolist()
-    if len(listed) > 64:
-        distinct = set(listed)
-        if len(distinct) * 8 < len(listed):
-            memo = {x: repr(x) for x in distinct if x == x}
-            # NaN is empty; zeros are written each for itself (0.0 and -0.0 are one key of the memo)
-            return [memo[x] if x and x == x else ("" if x != x else repr(x)) for x in listed]
+    distinct = _few_distinct(listed)
+    if distinct is not None:
+        memo = {x: repr(x) for x in distinct if x == x}
+        # NaN is empty; zeros are written each for itself (0.0 and -0.0 are one key of the memo)
+        return [memo[x] if x and x == x else ("" if x != x else repr(x)) for x in listed]
     return ["" if x != x else repr(x) for x in listed]
 
 
@@ -80,13 +88,12 @@ def _text_column(values: Any) -> list[str]:
     of few distinct values (statuses, sources) converts each value once; a column of text in
     which no cell starts like a formula is taken as it is."""
     values = list(values)
-    if len(values) > 64:
-        distinct = set(values)
-        if len(distinct) * 8 < len(values):
-            memo = {v: _text_cell(v) for v in distinct}
-            return list(map(memo.__getitem__, values))
-        if set(map(type, values)) == {str} and not _FORMULA_START.search("\n" + "\n".join(values)):
-            return values
+    distinct = _few_distinct(values)
+    if distinct is not None:
+        memo = {v: _text_cell(v) for v in distinct}
+        return list(map(memo.__getitem__, values))
+    if len(values) > 64 and set(map(type, values)) == {str} and not _FORMULA_START.search("\n" + "\n".join(values)):
+        return values
     return [_text_cell(v) for v in values]
 
 
